@@ -1,0 +1,346 @@
+// Linear-algebra helpers on top of ml-matrix, with the guards ml-matrix lacks.
+//
+// Why these wrappers exist (measured against numpy/LAPACK, CHECKS.md §2):
+//  - ml-matrix's EigenvalueDecomposition loops forever on NaN/Inf input, so every entry is checked
+//    with Number.isFinite first;
+//  - it does not balance before the Hessenberg QR iteration, so badly scaled matrices (companion
+//    matrices of polynomials with spread-out coefficients) lose accuracy: we balance first, with the
+//    Parlett–Reinsch scaling that LAPACK's dgebal uses (powers of 2, so no rounding is introduced);
+//  - its SVD of a wide matrix needs autoTranspose;
+//  - its SVD is 14–69× slower than LAPACK, so tall least-squares problems are first reduced by a
+//    Householder QR (O(m·n²), allocation-light) and only the small n×n triangle goes through the SVD.
+import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
+import { ModalInputError } from './errors';
+
+export interface Complex {
+  re: number;
+  im: number;
+}
+
+function assertFiniteMatrix(A: Matrix, what: string): void {
+  const rows = A.rows;
+  const cols = A.columns;
+  for (let i = 0; i < rows; i++) {
+    for (let j = 0; j < cols; j++) {
+      const v = A.get(i, j);
+      if (!Number.isFinite(v)) {
+        throw new ModalInputError(`${what}: entry (${i}, ${j}) is ${v}; every entry must be a finite number`);
+      }
+    }
+  }
+}
+
+/**
+ * Balances a square matrix in place by a diagonal similarity D⁻¹·A·D with D = diag(2^k), the
+ * scaling step of LAPACK dgebal (job 'S'; no permutation). Row and column 2-norms of each index
+ * are brought within a factor of 2 of each other; eigenvalues are unchanged exactly (powers of 2).
+ * Returns the scale factors d_i. `a` is row-major n×n.
+ */
+export function balanceInPlace(a: Float64Array, n: number): Float64Array {
+  const RADIX = 2;
+  const FACTOR = 0.95; // LAPACK: only accept a scaling that reduces c + r by at least 5 %
+  const SFMIN = 2.2250738585072014e-308 / 2.220446049250313e-16;
+  const SFMAX = 1 / SFMIN;
+  const scale = new Float64Array(n).fill(1);
+  // LAPACK iterates until no change; the cap only guards against pathological cycling.
+  for (let sweep = 0; sweep < 200; sweep++) {
+    let changed = false;
+    for (let i = 0; i < n; i++) {
+      let c = 0;
+      let r = 0;
+      let ca = 0;
+      let ra = 0;
+      for (let k = 0; k < n; k++) {
+        const col = a[k * n + i];
+        const row = a[i * n + k];
+        c += col * col;
+        r += row * row;
+        if (Math.abs(col) > ca) ca = Math.abs(col);
+        if (Math.abs(row) > ra) ra = Math.abs(row);
+      }
+      c = Math.sqrt(c);
+      r = Math.sqrt(r);
+      if (c === 0 || r === 0) continue;
+      let g = r / RADIX;
+      let f = 1;
+      const s = c + r;
+      while (c < g && Math.max(f, c, ca) < SFMAX && Math.min(r, g, ra) > SFMIN) {
+        f *= RADIX;
+        c *= RADIX;
+        ca *= RADIX;
+        r /= RADIX;
+        g /= RADIX;
+        ra /= RADIX;
+      }
+      g = c / RADIX;
+      while (g >= r && Math.max(r, ra) < SFMAX && Math.min(f, c, g, ca) > SFMIN) {
+        f /= RADIX;
+        c /= RADIX;
+        g /= RADIX;
+        ca /= RADIX;
+        r *= RADIX;
+        ra *= RADIX;
+      }
+      if (c + r >= FACTOR * s) continue;
+      if (f < 1 && scale[i] < 1 && f * scale[i] <= SFMIN) continue;
+      if (f > 1 && scale[i] > 1 && scale[i] >= SFMAX / f) continue;
+      scale[i] *= f;
+      changed = true;
+      const gInv = 1 / f;
+      for (let k = 0; k < n; k++) a[i * n + k] *= gInv; // row i by 1/f
+      for (let k = 0; k < n; k++) a[k * n + i] *= f; // column i by f
+    }
+    if (!changed) break;
+  }
+  return scale;
+}
+
+/**
+ * Eigenvalues of a real square matrix (complex conjugate pairs come out exactly conjugate).
+ * Checks every entry is finite (ModalInputError otherwise), balances (dgebal-style scaling), then
+ * runs ml-matrix's Hessenberg + shifted QR. Order is unspecified (compare as multisets).
+ */
+export function complexEigenvalues(A: Matrix): Complex[] {
+  if (!A.isSquare()) {
+    throw new ModalInputError(`complexEigenvalues: the matrix must be square, got ${A.rows}×${A.columns}`);
+  }
+  const n = A.rows;
+  if (n === 0) return [];
+  assertFiniteMatrix(A, 'complexEigenvalues');
+  if (n === 1) return [{ re: A.get(0, 0), im: 0 }];
+  const a = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) a[i * n + j] = A.get(i, j);
+  return eigenvaluesOfArray(a, n);
+}
+
+/** Eigenvalues of a row-major n×n array (consumed: balanced in place). Entries must be finite. */
+export function eigenvaluesOfArray(a: Float64Array, n: number): Complex[] {
+  if (n === 0) return [];
+  if (n === 1) return [{ re: a[0], im: 0 }];
+  balanceInPlace(a, n);
+  const rows: Float64Array[] = new Array(n);
+  for (let i = 0; i < n; i++) rows[i] = a.subarray(i * n, (i + 1) * n);
+  const evd = new EigenvalueDecomposition(new Matrix(rows));
+  const re = evd.realEigenvalues;
+  const im = evd.imaginaryEigenvalues;
+  const out: Complex[] = new Array(n);
+  for (let i = 0; i < n; i++) out[i] = { re: re[i], im: im[i] };
+  return out;
+}
+
+/**
+ * Roots of a polynomial with real coefficients, highest power first (same convention and same
+ * handling of leading/trailing zeros as numpy.roots): leading zeros are dropped, trailing zeros give
+ * roots at 0, an all-zero or constant polynomial has no roots. The remaining roots are the
+ * eigenvalues of the balanced companion matrix.
+ */
+export function polyRoots(coeffs: ArrayLike<number>): Complex[] {
+  for (let i = 0; i < coeffs.length; i++) {
+    if (!Number.isFinite(coeffs[i])) {
+      throw new ModalInputError(`polyRoots: coefficient ${i} is ${coeffs[i]}; every coefficient must be a finite number`);
+    }
+  }
+  let first = -1;
+  let last = -1;
+  for (let i = 0; i < coeffs.length; i++) {
+    if (coeffs[i] !== 0) {
+      if (first < 0) first = i;
+      last = i;
+    }
+  }
+  if (first < 0) return [];
+  const trailingZeros = coeffs.length - 1 - last;
+  const n = last - first; // degree after stripping
+  const out: Complex[] = [];
+  if (n > 0) {
+    // numpy.roots' companion: ones on the sub-diagonal, first row −p[1:]/p[0].
+    const a = new Float64Array(n * n);
+    const lead = coeffs[first];
+    for (let j = 0; j < n; j++) a[j] = -coeffs[first + 1 + j] / lead;
+    for (let i = 1; i < n; i++) a[i * n + i - 1] = 1;
+    if (!a.every(Number.isFinite)) {
+      throw new ModalInputError('polyRoots: the coefficients overflow when divided by the leading coefficient');
+    }
+    out.push(...eigenvaluesOfArray(a, n));
+  }
+  for (let i = 0; i < trailingZeros; i++) out.push({ re: 0, im: 0 });
+  return out;
+}
+
+export interface SvdOptions {
+  /** Compute U (default true). */
+  computeLeftSingularVectors?: boolean;
+  /** Compute V (default true). */
+  computeRightSingularVectors?: boolean;
+}
+
+/**
+ * Thin SVD A = U·diag(s)·Vᵀ through ml-matrix with autoTranspose, so wide matrices are handled
+ * (ml-matrix without it returns wrong factors for rows < columns). Checks entries are finite.
+ * Singular values are in descending order.
+ */
+export function svd(A: Matrix, options: SvdOptions = {}): SingularValueDecomposition {
+  if (A.rows === 0 || A.columns === 0) {
+    throw new ModalInputError(`svd: the matrix is empty (${A.rows}×${A.columns})`);
+  }
+  assertFiniteMatrix(A, 'svd');
+  return new SingularValueDecomposition(A, {
+    computeLeftSingularVectors: options.computeLeftSingularVectors ?? true,
+    computeRightSingularVectors: options.computeRightSingularVectors ?? true,
+    autoTranspose: true,
+  });
+}
+
+/**
+ * Householder QR of a tall row-major m×n array `a` (m ≥ n), in place, applying the same
+ * reflections to the row-major m×k array `b` (may be null). On return the upper n×n triangle of
+ * `a` is R and the first n rows of `b` are (Qᵀb)[0..n). Column-oriented loops over a row-major
+ * array are strided, but the work is O(m·n²) with no allocation beyond one length-m vector.
+ */
+export function householderInPlace(a: Float64Array, m: number, n: number, b: Float64Array | null, k: number): void {
+  const v = new Float64Array(m);
+  const steps = Math.min(m - 1, n);
+  for (let j = 0; j < steps; j++) {
+    let norm = 0;
+    for (let i = j; i < m; i++) {
+      const x = a[i * n + j];
+      norm += x * x;
+    }
+    norm = Math.sqrt(norm);
+    if (norm === 0) continue;
+    const ajj = a[j * n + j];
+    const alpha = ajj > 0 ? -norm : norm;
+    // v = x − alpha·e1, stored from index j; H = I − 2vvᵀ/(vᵀv)
+    v[j] = ajj - alpha;
+    let vtv = v[j] * v[j];
+    for (let i = j + 1; i < m; i++) {
+      v[i] = a[i * n + j];
+      vtv += v[i] * v[i];
+    }
+    if (vtv === 0) continue;
+    const beta = 2 / vtv;
+    a[j * n + j] = alpha;
+    for (let i = j + 1; i < m; i++) a[i * n + j] = 0;
+    for (let c = j + 1; c < n; c++) {
+      let dot = 0;
+      for (let i = j; i < m; i++) dot += v[i] * a[i * n + c];
+      dot *= beta;
+      if (dot === 0) continue;
+      for (let i = j; i < m; i++) a[i * n + c] -= dot * v[i];
+    }
+    if (b) {
+      for (let c = 0; c < k; c++) {
+        let dot = 0;
+        for (let i = j; i < m; i++) dot += v[i] * b[i * k + c];
+        dot *= beta;
+        if (dot === 0) continue;
+        for (let i = j; i < m; i++) b[i * k + c] -= dot * v[i];
+      }
+    }
+  }
+}
+
+/** R factor (n×n upper triangle, as a Matrix) of a tall row-major m×n array; `a` is consumed. */
+export function rFactor(a: Float64Array, m: number, n: number): Matrix {
+  householderInPlace(a, m, n, null, 0);
+  const p = Math.min(m, n);
+  const R = new Matrix(p, n);
+  for (let i = 0; i < p; i++) for (let j = i; j < n; j++) R.set(i, j, a[i * n + j]);
+  return R;
+}
+
+export interface LstsqOptions {
+  /**
+   * Singular values below rcond·s_max are treated as zero (rank-deficient directions get the
+   * minimum-norm solution). Default, as numpy.linalg.lstsq with rcond=None: eps·max(m, n).
+   */
+  rcond?: number;
+}
+
+export interface LstsqResult {
+  x: Matrix;
+  rank: number;
+  singularValues: number[];
+}
+
+/**
+ * Least-squares solution of A·x ≈ b (b may have several columns), minimum-norm when A is
+ * rank-deficient — the same answer numpy.linalg.lstsq gives. Tall A is first reduced by a
+ * Householder QR and only R goes through the SVD.
+ */
+export function lstsq(A: Matrix, b: Matrix, options: LstsqOptions = {}): Matrix {
+  return lstsqDetailed(A, b, options).x;
+}
+
+/** lstsq returning also the numerical rank and the singular values of A. */
+export function lstsqDetailed(A: Matrix, b: Matrix, options: LstsqOptions = {}): LstsqResult {
+  const m = A.rows;
+  const n = A.columns;
+  if (b.rows !== m) {
+    throw new ModalInputError(`lstsq: A has ${m} rows but b has ${b.rows}`);
+  }
+  if (m === 0 || n === 0) throw new ModalInputError(`lstsq: the matrix is empty (${m}×${n})`);
+  assertFiniteMatrix(A, 'lstsq (A)');
+  assertFiniteMatrix(b, 'lstsq (b)');
+  const a = new Float64Array(m * n);
+  for (let i = 0; i < m; i++) for (let j = 0; j < n; j++) a[i * n + j] = A.get(i, j);
+  const k = b.columns;
+  const bb = new Float64Array(m * k);
+  for (let i = 0; i < m; i++) for (let j = 0; j < k; j++) bb[i * k + j] = b.get(i, j);
+  return lstsqArrays(a, m, n, bb, k, options.rcond ?? 2.220446049250313e-16 * Math.max(m, n));
+}
+
+/**
+ * Core of lstsq on row-major arrays (both consumed). x is n×k.
+ * For m ≥ n: QR, then SVD of the n×n R: x = V·S⁺·Uᵀ·(Qᵀb)[0..n).
+ * For m < n: SVD of A directly (autoTranspose).
+ */
+export function lstsqArrays(a: Float64Array, m: number, n: number, b: Float64Array, k: number, rcond: number): LstsqResult {
+  let core: Matrix;
+  let rhs: Matrix;
+  if (m > n) {
+    householderInPlace(a, m, n, b, k);
+    core = new Matrix(n, n);
+    for (let i = 0; i < n; i++) for (let j = i; j < n; j++) core.set(i, j, a[i * n + j]);
+    rhs = new Matrix(n, k);
+    for (let i = 0; i < n; i++) for (let j = 0; j < k; j++) rhs.set(i, j, b[i * k + j]);
+  } else {
+    core = new Matrix(m, n);
+    for (let i = 0; i < m; i++) for (let j = 0; j < n; j++) core.set(i, j, a[i * n + j]);
+    rhs = new Matrix(m, k);
+    for (let i = 0; i < m; i++) for (let j = 0; j < k; j++) rhs.set(i, j, b[i * k + j]);
+  }
+  const dec = new SingularValueDecomposition(core, { autoTranspose: true });
+  const s = dec.diagonal;
+  const U = dec.leftSingularVectors;
+  const V = dec.rightSingularVectors;
+  const smax = s.length > 0 ? s[0] : 0;
+  const cutoff = rcond * smax;
+  let rank = 0;
+  for (const sv of s) if (sv > cutoff && sv > 0) rank++;
+  const x = new Matrix(n, k);
+  const r = U.rows;
+  for (let c = 0; c < k; c++) {
+    for (let t = 0; t < rank; t++) {
+      let dot = 0;
+      for (let i = 0; i < r; i++) dot += U.get(i, t) * rhs.get(i, c);
+      const w = dot / s[t];
+      for (let j = 0; j < n; j++) x.set(j, c, x.get(j, c) + V.get(j, t) * w);
+    }
+  }
+  return { x, rank, singularValues: s.slice() };
+}
+
+/** Complex helpers used by the estimators (kept tiny; no allocation-heavy class). */
+export function cabs(z: Complex): number {
+  return Math.hypot(z.re, z.im);
+}
+
+export function clog(z: Complex): Complex {
+  return { re: Math.log(Math.hypot(z.re, z.im)), im: Math.atan2(z.im, z.re) };
+}
+
+export function cexp(z: Complex): Complex {
+  const r = Math.exp(z.re);
+  return { re: r * Math.cos(z.im), im: r * Math.sin(z.im) };
+}

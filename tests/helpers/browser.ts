@@ -1,0 +1,66 @@
+// Debian's Chromium driven by playwright-core, with a fresh profile folder per launch.
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+
+export const VIEWPORTS = {
+  phone: { width: 390, height: 844 },
+  wide: { width: 1440, height: 900 },
+} as const;
+export type ViewportName = keyof typeof VIEWPORTS;
+
+function chromiumPath(): string {
+  for (const p of ['/usr/bin/chromium', '/usr/bin/chromium-browser']) if (fs.existsSync(p)) return p;
+  throw new Error('Debian chromium is not installed (apt-get install chromium)');
+}
+
+export interface BrowserSession {
+  context: BrowserContext;
+  page: Page;
+  /** Console errors and page errors seen so far. */
+  errors: string[];
+  /** Saves a screenshot under test-output/screenshots/<suite>/<name>-<viewport>.png. */
+  shot(name: string): Promise<string>;
+  close(): Promise<void>;
+}
+
+export async function openBrowser(suite: string, viewport: ViewportName): Promise<BrowserSession> {
+  const profile = fs.mkdtempSync(path.join(os.tmpdir(), 'keel-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: chromiumPath(),
+    headless: true,
+    viewport: VIEWPORTS[viewport],
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  const errors: string[] = [];
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') errors.push(msg.text());
+  });
+  page.on('pageerror', (err) => errors.push(String(err)));
+  const outDir = path.join(process.env.KEEL_TEST_OUTPUT ?? path.resolve(__dirname, '..', '..', 'test-output'), 'screenshots', suite);
+  fs.mkdirSync(outDir, { recursive: true });
+  return {
+    context,
+    page,
+    errors,
+    async shot(name: string) {
+      const file = path.join(outDir, `${name}-${viewport}.png`);
+      await page.screenshot({ path: file, fullPage: true });
+      return file;
+    },
+    async close() {
+      await context.close();
+      fs.rmSync(profile, { recursive: true, force: true });
+    },
+  };
+}
