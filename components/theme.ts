@@ -1,5 +1,6 @@
 // Keel's one token module (DESIGN.md §4). Every colour, space, type size and font family used by
 // the app comes from here so the look stays consistent and can be changed in one place.
+import type { Band } from '@/shared/bands';
 
 export const colors = {
   ink: '#14202B',
@@ -20,7 +21,8 @@ export const colors = {
   focus: '#0F6E6A',
 } as const;
 
-export type BandName = 'ample' | 'low' | 'poor' | 'forced';
+/** The damping bands of shared/bands.ts (DESIGN.md §3). */
+export type BandName = Band;
 
 /**
  * Damping bands: colour, shape and word together so colour is never the only cue.

@@ -71,6 +71,11 @@ export interface RingdownResult {
     /** perMode[k] is mode k's contribution (same order as `modes`). */
     perMode: Float64Array[];
   }[];
+  /** Sampling rate of `reconstruction` (the record's own rate), samples/s. Set by fitRingdown. */
+  recordRate?: number;
+  /** The fitted interval as record sample indices [startIndex, endIndex). Set by fitRingdown. */
+  startIndex?: number;
+  endIndex?: number;
 }
 
 /** A mode-shape entry: the channel's response at the modal frequency relative to the reference. */
@@ -93,6 +98,11 @@ export interface AmbientMode extends ModePole {
   shape: ShapeEntry[];
   /** Relative spectral peak size or pole residue magnitude, used for ranking. */
   strength: number;
+  /**
+   * Phase coherence of the peak across the window's spectral segments, 0…1 (the forced-oscillation
+   * statistic; near 1 for a sustained sinusoid). Present when the forced test ran on this mode.
+   */
+  coherence?: number;
 }
 
 export interface WindowQuality {

@@ -1,12 +1,15 @@
 import { defineConfig } from 'vitest/config';
 import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = path.dirname(fileURLToPath(import.meta.url));
 
 // One runner for everything that is not the app bundle itself:
 //  unit        — pure code (modal/, shared/, server and job units with ioredis-mock)
 //  integration — the real server, PostgreSQL, Redis and worker processes (tests/helpers/stack.ts)
 //  browser     — Debian Chromium through playwright-core against the built web export
 export default defineConfig({
-  resolve: { alias: { '@': path.resolve(__dirname) } },
+  resolve: { alias: { '@': root } },
   test: {
     projects: [
       {

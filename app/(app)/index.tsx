@@ -1,0 +1,5 @@
+import { WatchScreen } from '@/components/watch/watch-screen';
+
+export default function WatchRoute() {
+  return <WatchScreen />;
+}

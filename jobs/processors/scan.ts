@@ -1,0 +1,362 @@
+// The ambient scan job: sliding windows over a stored recording → windows, mode estimates with
+// confidence intervals, mode shapes, forced flags, the corridors' mean transfer and angle, and the
+// track of each estimate. Runs in a sandboxed processor (./scan-sandbox.ts): the estimator is
+// CPU-heavy and must not hold up the worker's event loop (lock renewal, other queues).
+//
+// Samples are read from PostgreSQL in 10-minute chunks and streamed through the estimator's
+// scanner (createAmbientScanner), so memory stays at about one window whatever the length.
+//
+// Idempotent per window: each window is stored in one transaction with its estimates, keyed
+// (analysis, window start). A restarted job (worker killed, transient fault) resumes the stream at
+// the first window not yet stored; windows already stored are never written twice, none is
+// skipped. Window starts are on the grid recording start + k·step.
+import { UnrecoverableError } from 'bullmq';
+import { readRecordingSamples } from '../../db/queries/recordings';
+import { listTracks } from '../../db/queries/alerts';
+import {
+  channelIdsByName,
+  corridorChannelNames,
+  finishAnalysis,
+  getAnalysis,
+  getRecording,
+  markAnalysisRunning,
+  recordingChannelList,
+  setAnalysisProgress,
+  storedWindowStarts,
+  storeScanWindow,
+  type AnalysisRow,
+  type EstimateInput,
+} from '../../db/queries/scans';
+import { checkAmbientOptions, createAmbientScanner, type AmbientOptionsInput, type ResolvedAmbientOptions } from '../../modal/ambient';
+import { ModalInputError } from '../../modal/errors';
+import { assignTracks, type ModeTrackSpec } from '../../modal/tracking';
+import type { AmbientMode, AmbientWindowResult } from '../../modal/types';
+import { enqueueEvaluateAlerts, scanJobSchema } from './analysis-queues';
+import { isLastAttempt, type AnalysisContext, type JobLike } from './analysis-context';
+import { failAnalysisWith, publishProgress } from './analysis-progress';
+
+/** Samples read per database round trip, seconds of recording. */
+const CHUNK_SECONDS = 600;
+/** Progress is written at most this often (and at the end). */
+const PROGRESS_EVERY_MS = 1000;
+
+export interface ScanOutcome {
+  analysisId: number;
+  windows: number;
+  storedNow: number;
+  skippedExisting: number;
+}
+
+/** Windows of a record of `rawSamples` samples (the estimator's own count). */
+export function windowCount(o: ResolvedAmbientOptions, rawSamples: number): number {
+  const na = Math.ceil(rawSamples / o.factor);
+  if (na < o.windowSamples) return 0;
+  return Math.floor((na - o.windowSamples) / o.stepSamples) + 1;
+}
+
+/** Per-second sums of a corridor quantity over the recording (NaN samples left out). */
+class SecondSums {
+  readonly sum: Float64Array;
+  readonly count: Uint32Array;
+  constructor(seconds: number) {
+    this.sum = new Float64Array(seconds + 1);
+    this.count = new Uint32Array(seconds + 1);
+  }
+  add(second: number, v: number): void {
+    if (!Number.isFinite(v) || second < 0 || second >= this.sum.length) return;
+    this.sum[second] += v;
+    this.count[second]++;
+  }
+  /** Mean over [fromSecond, toSecond) or null when nothing was valid. */
+  mean(fromSecond: number, toSecond: number): number | null {
+    let s = 0;
+    let n = 0;
+    for (let i = Math.max(0, fromSecond); i < Math.min(toSecond, this.sum.length); i++) {
+      s += this.sum[i];
+      n += this.count[i];
+    }
+    return n > 0 ? s / n : null;
+  }
+}
+
+function wrap180(deg: number): number {
+  let a = deg % 360;
+  if (a <= -180) a += 360;
+  else if (a > 180) a -= 360;
+  return a;
+}
+
+function refuse(message: string): never {
+  throw new UnrecoverableError(message);
+}
+
+export async function runScan(ctx: AnalysisContext, job: JobLike): Promise<ScanOutcome> {
+  const parsed = scanJobSchema.safeParse(job.data);
+  if (!parsed.success) refuse(`Bad scan job payload: ${parsed.error.issues.map((i) => i.message).join('; ')}`);
+  const analysisId = parsed.data.analysisId;
+  const analysis = await getAnalysis(ctx.db, { id: analysisId });
+  if (!analysis) refuse(`Analysis ${analysisId} does not exist (deleted?)`);
+  if (analysis.kind !== 'scan') refuse(`Analysis ${analysisId} is a ${analysis.kind}, not a scan`);
+  try {
+    return await scan(ctx, job, analysis);
+  } catch (err) {
+    // refusals of the input (estimator options, channels or interval not in the recording) are final
+    const bad = err instanceof UnrecoverableError || err instanceof ModalInputError || (err as { code?: unknown }).code === 'RECORDING_SAMPLES';
+    const message = (err as Error).message;
+    if (bad || isLastAttempt(job)) {
+      await failAnalysisWith(ctx, analysis, bad ? message : `Failed after ${job.attemptsMade + 1} attempts: ${message}`);
+    }
+    if (bad && !(err instanceof UnrecoverableError)) throw new UnrecoverableError(message);
+    throw err;
+  }
+}
+
+async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): Promise<ScanOutcome> {
+  const t0 = Date.now();
+  const { db } = ctx;
+  const recording = await getRecording(db, { id: analysis.recordingId });
+  if (!recording) refuse(`Recording ${analysis.recordingId} does not exist`);
+  if (recording.status === 'failed') refuse(`Recording ${recording.id} (${recording.fileName}) failed to ingest: ${recording.error ?? 'no reason stored'}`);
+  if (recording.status !== 'ready' || !recording.startTime || !recording.rate || !recording.sampleCount) {
+    // still ingesting: a transient state, retried with backoff
+    throw new Error(`Recording ${recording.id} is not ready yet (status ${recording.status})`);
+  }
+  const rate = recording.rate;
+  const recStartMs = recording.startTime.getTime();
+  // exact epoch seconds of frame 0 (the timestamptz column holds milliseconds only)
+  const q = recording.quality as { startEpoch?: unknown } | null;
+  const recStartExact = typeof q?.startEpoch === 'number' ? q.startEpoch : recStartMs / 1000;
+  const totalSamples = recording.sampleCount;
+  const channelRows = await recordingChannelList(db, { recordingId: recording.id });
+  const channelNames = channelRows.map((c) => c.name);
+  const o = checkAmbientOptions(analysis.settings as AmbientOptionsInput, {
+    rate,
+    channelNames,
+    durationSeconds: totalSamples / rate,
+  });
+  // the scanner is fed exactly the analysed channels plus the angle reference they are taken against
+  const fed = [...o.channels];
+  if (o.angleReference !== null && o.channels.some((c) => o.angleChannels.includes(c))) fed.push(o.angleReference);
+
+  const tracks = await listTracks(db);
+  const tracker = new ScanTracker(tracks);
+  const trackIdOf = new Map(tracks.map((t) => [t.code, t.id]));
+  const channelIds = await channelIdsByName(db);
+  const corridors = (await corridorChannelNames(db)).map((c) => ({
+    ...c,
+    flow: c.flow && channelNames.includes(c.flow) ? c.flow : null,
+    angles: c.fromAngle && c.toAngle && channelNames.includes(c.fromAngle) && channelNames.includes(c.toAngle) ? ([c.fromAngle, c.toAngle] as const) : null,
+  }));
+  const readNames = [...new Set([...fed, ...corridors.flatMap((c) => [...(c.flow ? [c.flow] : []), ...(c.angles ?? [])])])];
+
+  const total = windowCount(o, totalSamples);
+  if (total === 0) refuse(`Recording ${recording.id} is shorter than one window of ${o.windowSeconds} s`);
+  const stepRaw = o.stepSamples * o.factor;
+  const stepMs = (stepRaw / rate) * 1000;
+  const startMsOf = (k: number) => recStartMs + Math.round(k * stepMs);
+  const stored = await storedWindowStarts(db, { analysisId: analysis.id });
+  let first = 0;
+  while (first < total && stored.has(startMsOf(first))) first++;
+
+  await markAnalysisRunning(db, { id: analysis.id });
+  let done = stored.size;
+  let lastProgressAt = 0;
+  const progress = async (force = false) => {
+    if (!force && Date.now() - lastProgressAt < PROGRESS_EVERY_MS) return;
+    lastProgressAt = Date.now();
+    const p = Math.min(1, done / total);
+    await setAnalysisProgress(db, { id: analysis.id, progress: p });
+    await job.updateProgress(p).catch(() => undefined);
+    await publishProgress(ctx, { ...analysis, status: 'running', progress: p, error: null });
+  };
+  await progress(true);
+
+  let storedNow = 0;
+  let skippedExisting = 0;
+  if (first < total) {
+    const streamStartRaw = first * stepRaw;
+    const seconds = Math.ceil(totalSamples / rate);
+    const flowSums = new Map(corridors.filter((c) => c.flow).map((c) => [c.code, new SecondSums(seconds)]));
+    const angleSums = new Map(corridors.filter((c) => c.angles).map((c) => [c.code, new SecondSums(seconds)]));
+    const pending: { w: AmbientWindowResult; k: number }[] = [];
+    let emitted = 0;
+    const scanner = createAmbientScanner(
+      { rate, startTime: recStartExact + streamStartRaw / rate, channelNames: fed },
+      { ...(analysis.settings as AmbientOptionsInput), channels: o.channels },
+      (w) => pending.push({ w, k: first + emitted++ }),
+    );
+
+    const flush = async () => {
+      for (const { w, k } of pending.splice(0)) {
+        const startMs = startMsOf(k);
+        if (stored.has(startMs)) {
+          skippedExisting++;
+          continue;
+        }
+        const endMs = startMs + o.windowSeconds * 1000;
+        const fromSec = Math.floor((startMs - recStartMs) / 1000);
+        const toSec = Math.ceil((endMs - recStartMs) / 1000);
+        const transferMw: Record<string, number> = {};
+        const angleDeg: Record<string, number> = {};
+        for (const [code, s] of flowSums) {
+          const m = s.mean(fromSec, toSec);
+          if (m !== null) transferMw[code] = m;
+        }
+        for (const [code, s] of angleSums) {
+          const m = s.mean(fromSec, toSec);
+          if (m !== null) angleDeg[code] = m;
+        }
+        const estimates = windowEstimates(w, o, tracker, trackIdOf, channelIds, new Date(endMs));
+        const res = await storeScanWindow(db, {
+          analysisId: analysis.id,
+          start: new Date(startMs),
+          end: new Date(endMs),
+          quality: { skipped: w.skipped, reason: w.reason ?? null, channels: w.quality },
+          transferMw,
+          angleDeg,
+          estimates,
+        });
+        if (res.stored) {
+          storedNow++;
+          stored.add(startMs);
+        } else skippedExisting++;
+        done = stored.size;
+        await progress();
+      }
+    };
+
+    const chunkRaw = Math.round(CHUNK_SECONDS * rate);
+    let next = streamStartRaw; // next raw sample index to feed
+    while (next < totalSamples) {
+      const endIdx = Math.min(totalSamples, next + chunkRaw);
+      // [from, to] both inclusive, in epoch seconds on the recording's exact grid
+      const rec = await readRecordingSamples(db, {
+        recordingId: recording.id,
+        channels: readNames,
+        from: recStartExact + next / rate,
+        to: recStartExact + (endIdx - 1) / rate,
+      });
+      if (!rec) refuse(`Recording ${recording.id} was deleted during the scan`);
+      // Place what came back on the recording's sample grid.
+      const offset = Math.round((rec.startTime - recStartExact) * rate);
+      const n = endIdx - next;
+      const arrays = new Map<string, Float64Array>();
+      for (const name of readNames) {
+        const out = new Float64Array(n).fill(NaN);
+        const ch = rec.channels.find((c) => c.name === name);
+        if (ch) {
+          for (let i = 0; i < ch.values.length; i++) {
+            const idx = offset + i - next; // offset is the frame index of ch.values[0]
+            if (idx >= 0 && idx < n) out[idx] = ch.values[i];
+          }
+        }
+        arrays.set(name, out);
+      }
+      for (const c of corridors) {
+        const sumsF = flowSums.get(c.code);
+        if (sumsF && c.flow) {
+          const x = arrays.get(c.flow)!;
+          for (let i = 0; i < n; i++) sumsF.add(Math.floor((next + i) / rate), x[i]);
+        }
+        const sumsA = angleSums.get(c.code);
+        if (sumsA && c.angles) {
+          const a = arrays.get(c.angles[0])!;
+          const b = arrays.get(c.angles[1])!;
+          for (let i = 0; i < n; i++) sumsA.add(Math.floor((next + i) / rate), wrap180(a[i] - b[i]));
+        }
+      }
+      scanner.push(fed.map((name) => arrays.get(name)!));
+      next = endIdx;
+      await flush();
+    }
+    scanner.finish();
+    await flush();
+  }
+  done = stored.size;
+  await progress(true);
+  if (stored.size < total) {
+    throw new Error(`Scan ${analysis.id} stored ${stored.size} of ${total} windows; retrying`);
+  }
+  const finished = await finishAnalysis(db, { id: analysis.id, timings: { totalMs: Date.now() - t0, windows: total, storedNow } });
+  if (finished) await publishProgress(ctx, finished);
+  await enqueueEvaluateAlerts(ctx.queues, { analysisId: analysis.id });
+  return { analysisId: analysis.id, windows: total, storedNow, skippedExisting };
+}
+
+/**
+ * Track assignment across the windows of one scan (frequency band and mode-shape similarity):
+ *  - candidates of a track are the natural modes in its band carrying at least `strengthFloor` of
+ *    the window's strongest mode (weaker peaks are noise the estimator fitted, not modes to follow);
+ *  - in a track's first window the strongest candidate is taken; afterwards only a candidate whose
+ *    shape matches the track's previous estimate (MAC ≥ minMac, modal/tracking.ts) — so a trend
+ *    follows one physical mode and a window without it stays without an estimate;
+ *  - forced-oscillation peaks in a band are stored on that track (never as its natural estimate).
+ * The tracks' site groups (reference shapes) are not used as the match: estimated shapes are
+ * relative to the angle reference bus, where a ±1 group pattern scores low even for the right mode.
+ */
+export class ScanTracker {
+  private readonly prev = new Map<string, AmbientMode['shape']>();
+  constructor(
+    private readonly tracks: { code: string; minHz: number; maxHz: number }[],
+    private readonly opts: { minMac: number; strengthFloor: number } = { minMac: 0.5, strengthFloor: 0.02 },
+  ) {}
+
+  /** Mode index → track code for one window's modes. */
+  assign(modes: AmbientMode[]): Map<number, string> {
+    const out = new Map<number, string>();
+    if (this.tracks.length === 0 || modes.length === 0) return out;
+    let strongest = 0;
+    for (const m of modes) if (!m.forced && m.strength > strongest) strongest = m.strength;
+    const keep: number[] = [];
+    modes.forEach((m, i) => {
+      if (m.forced || m.strength >= this.opts.strengthFloor * strongest) keep.push(i);
+    });
+    const specs: ModeTrackSpec[] = this.tracks.map((t) => ({
+      code: t.code,
+      minHz: t.minHz,
+      maxHz: t.maxHz,
+      referenceShape: this.prev.get(t.code) ?? null,
+      minMac: this.opts.minMac,
+    }));
+    const a = assignTracks(keep.map((i) => modes[i]), specs);
+    for (const t of a.assignments) {
+      if (t.modeIndex !== null) {
+        const i = keep[t.modeIndex];
+        out.set(i, t.track);
+        this.prev.set(t.track, modes[i].shape);
+      }
+      for (const f of t.forcedInBand) if (!out.has(keep[f])) out.set(keep[f], t.track);
+    }
+    return out;
+  }
+}
+
+/** The window's modes as stored estimates, each with its track (see ScanTracker). */
+export function windowEstimates(
+  w: AmbientWindowResult,
+  o: Pick<ResolvedAmbientOptions, 'method'>,
+  tracker: ScanTracker,
+  trackIdOf: Map<string, number>,
+  channelIds: Map<string, number>,
+  at: Date,
+): EstimateInput[] {
+  if (w.skipped || w.modes.length === 0) return [];
+  const trackOfMode = tracker.assign(w.modes);
+  return w.modes.map((m, i) => ({
+    trackId: trackIdOf.get(trackOfMode.get(i) ?? '') ?? null,
+    at,
+    frequencyHz: m.frequencyHz,
+    dampingPercent: m.dampingPercent,
+    dampingLo: Number.isFinite(m.dampingCi[0]) ? m.dampingCi[0] : null,
+    dampingHi: Number.isFinite(m.dampingCi[1]) ? m.dampingCi[1] : null,
+    frequencyLo: Number.isFinite(m.frequencyCi[0]) ? m.frequencyCi[0] : null,
+    frequencyHi: Number.isFinite(m.frequencyCi[1]) ? m.frequencyCi[1] : null,
+    amplitude: Number.isFinite(m.strength) ? m.strength : null,
+    fitQuality: null,
+    method: o.method,
+    forced: m.forced,
+    shape: m.shape
+      .filter((s) => channelIds.has(s.channel) && Number.isFinite(s.magnitude) && Number.isFinite(s.angleDeg))
+      .map((s) => ({ channelId: channelIds.get(s.channel)!, magnitude: s.magnitude, angleDeg: s.angleDeg })),
+  }));
+}

@@ -1,0 +1,41 @@
+// Public API of the Tarrow simulator (DESIGN.md §5.6): the linearised classical-model system with
+// its true modes, and sampled PMU records (ambient, ring-down, forced oscillation, a day of trend).
+export {
+  BASE_MVA,
+  EXCITATION_GAIN,
+  EXCITATION_MACHINES,
+  EXCITATION_ZERO_MW,
+  buildTarrowModel,
+  modeOutputShape,
+  trackMode,
+  transferAtDampingPercent,
+  wrap180,
+  type ModelNetwork,
+  type OutputShapeOptions,
+  type TarrowModelOptions,
+  type ModelOutput,
+  type TarrowModel,
+  type TrueMode,
+} from './model';
+export {
+  DEFAULT_LOAD_NOISE,
+  DEFAULT_PMU_NOISE,
+  DEFAULT_START_TIME,
+  checkAmbientSimOptions,
+  checkDaySimOptions,
+  checkRingdownSimOptions,
+  dailyTransferMw,
+  simulateAmbient,
+  simulateDay,
+  simulateDayChunks,
+  simulateRingdown,
+  type AmbientSimOptions,
+  type DayChunk,
+  type DaySimOptions,
+  type ForcedOscillation,
+  type PmuNoise,
+  type RingdownEvent,
+  type RingdownSimOptions,
+  type RingdownSimulation,
+} from './simulate';
+export { expm, vanLoan } from './dense';

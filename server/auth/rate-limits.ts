@@ -1,0 +1,68 @@
+// Rate limits on the routes that guess at secrets or send e-mail. In-memory counters per server
+// process (one process serves the API; a multi-instance deployment would need a shared store).
+import type { Request, RequestHandler } from 'express';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { errorBody, RateLimitedError } from '../errors';
+import type { RateLimitName } from '../routes/registry';
+
+const MINUTE = 60_000;
+
+const emailOf = (req: Request) =>
+  String((req.body as { email?: unknown } | undefined)?.email ?? '')
+    .trim()
+    .toLowerCase();
+const ipOf = (req: Request) => ipKeyGenerator(req.ip ?? 'unknown');
+
+function limiter(opts: {
+  windowMs: number;
+  limit: number;
+  key: (req: Request) => string;
+  message: string;
+  skipSuccessfulRequests?: boolean;
+}): RequestHandler {
+  return rateLimit({
+    windowMs: opts.windowMs,
+    limit: opts.limit,
+    keyGenerator: opts.key,
+    skipSuccessfulRequests: opts.skipSuccessfulRequests ?? false,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, res) => {
+      res.status(429).json(errorBody(new RateLimitedError(opts.message)));
+    },
+  });
+}
+
+export function createRateLimits(): Record<RateLimitName, RequestHandler> {
+  return {
+    // 10 failed attempts per minute for one address and e-mail; successful sign-ins do not count,
+    // so the 11th attempt after ten wrong passwords is refused even with the right one.
+    signIn: limiter({
+      windowMs: MINUTE,
+      limit: 10,
+      key: (req) => `${ipOf(req)}|${emailOf(req)}`,
+      message: 'Too many sign-in attempts; wait a minute and try again',
+      skipSuccessfulRequests: true,
+    }),
+    invitations: limiter({
+      windowMs: 15 * MINUTE,
+      limit: 30,
+      key: (req) => `${ipOf(req)}|${(req.user as { id?: number } | undefined)?.id ?? ''}`,
+      message: 'Too many invitations in a short time; wait a few minutes',
+    }),
+    passwordReset: limiter({
+      windowMs: 15 * MINUTE,
+      limit: 5,
+      key: (req) => `${ipOf(req)}|${emailOf(req)}`,
+      message: 'Too many password-reset requests; wait a few minutes',
+    }),
+    // Accepting an invitation / completing a reset / looking a token up: tokens are 256-bit, this
+    // only stops a runaway client.
+    linkTokens: limiter({
+      windowMs: 15 * MINUTE,
+      limit: 60,
+      key: ipOf,
+      message: 'Too many attempts with links; wait a few minutes',
+    }),
+  };
+}
