@@ -105,20 +105,22 @@ class SeriesBuffer {
     return this.base + this.len;
   }
 
-  append(v: number, keepFrom: number): void {
-    if (this.len === this.data.length) {
-      const drop = Math.max(0, Math.min(this.len, keepFrom - this.base));
-      if (drop >= this.data.length / 4) {
-        this.data.copyWithin(0, drop, this.len);
-        this.base += drop;
-        this.len -= drop;
-      } else {
-        const nd = new Float64Array(this.data.length * 2);
-        nd.set(this.data);
-        this.data = nd;
-      }
+  /** Makes room for n more values, dropping those before `keepFrom` when full. */
+  reserve(n: number, keepFrom: number): void {
+    if (this.len + n <= this.data.length) return;
+    const drop = Math.max(0, Math.min(this.len, keepFrom - this.base));
+    if (drop > 0) {
+      this.data.copyWithin(0, drop, this.len);
+      this.base += drop;
+      this.len -= drop;
     }
-    this.data[this.len++] = v;
+    if (this.len + n > this.data.length) {
+      let cap = this.data.length;
+      while (cap < this.len + n) cap *= 2;
+      const nd = new Float64Array(cap);
+      nd.set(this.data.subarray(0, this.len));
+      this.data = nd;
+    }
   }
 }
 
@@ -315,6 +317,7 @@ export class AmbientEngine {
   private readonly dcBlock: DcBlocker[];
   private readonly blockRawSq: Float64Array; // accumulating Σ derived² for the current analysis block, per channel
   private readonly decScratch: Float64Array;
+  private decOut = new Float64Array(1024);
   private uwScratch = new Float64Array(0);
 
   private rawCount = 0;
@@ -452,8 +455,10 @@ export class AmbientEngine {
     this.derive();
     for (let c = 0; c < this.nCh; c++) {
       const s = this.series[c];
-      const dc = this.dcBlock[c];
-      this.dec[c].finish((v) => s.append(dc.step(v), this.keepFrom()));
+      const need = this.dec[c].maxOutputs(0);
+      if (this.decOut.length < need) this.decOut = new Float64Array(need);
+      const k = this.dec[c].finish(this.decOut);
+      this.appendSeries(c, this.decOut, k, this.keepFrom());
     }
     this.process();
   }
@@ -521,6 +526,17 @@ export class AmbientEngine {
     }
   }
 
+  /** DC-blocks decimated values v[0..n) and appends them to channel c's series. */
+  private appendSeries(c: number, v: Float64Array, n: number, keep: number): void {
+    const s = this.series[c];
+    const dc = this.dcBlock[c];
+    s.reserve(n, keep);
+    const data = s.data;
+    let len = s.len;
+    for (let i = 0; i < n; i++) data[len++] = dc.step(v[i]);
+    s.len = len;
+  }
+
   private keepFrom(): number {
     const o = this.o;
     return Math.min(this.nextWindow * o.stepSamples, this.nextBlock * o.blockSamples) - o.maxLag - 1;
@@ -553,9 +569,10 @@ export class AmbientEngine {
       }
       for (let i = 0; i < n; i++) sq += scratch[i] * scratch[i];
       this.blockRawSq[c] += sq;
-      const s = this.series[c];
-      const dc = this.dcBlock[c];
-      this.dec[c].push(scratch, 0, n, (v) => s.append(dc.step(v), keep));
+      const need = this.dec[c].maxOutputs(n);
+      if (this.decOut.length < need) this.decOut = new Float64Array(need);
+      const k = this.dec[c].push(scratch, 0, n, this.decOut);
+      this.appendSeries(c, this.decOut, k, keep);
     }
     this.derivedCount = ready;
     for (const c of this.cond) c.out.dropBefore(ready);

@@ -112,35 +112,50 @@ export class FirDecimator {
   }
 
   private append(v: number): void {
-    if (this.bufLen === this.buf.length) {
-      // Drop what no future output needs: outputs ≥ nextOut use inputs from q·nextOut − D on.
-      const keepFrom = this.q * this.nextOut - this.d;
-      const drop = Math.max(0, Math.min(this.bufLen, keepFrom - this.bufStart));
-      if (drop > this.bufLen / 4) {
-        this.buf.copyWithin(0, drop, this.bufLen);
-        this.bufStart += drop;
-        this.bufLen -= drop;
-      } else {
-        const nb = new Float64Array(this.buf.length * 2);
-        nb.set(this.buf.subarray(0, this.bufLen));
-        this.buf = nb;
-      }
-    }
+    // outputs ≥ nextOut use inputs from q·nextOut − D on; older samples can go
+    if (this.bufLen === this.buf.length) this.makeRoom(1);
     this.buf[this.bufLen++] = v;
   }
 
-  /** Feeds input samples (finite); writes available outputs via `emit`. */
-  push(x: ArrayLike<number>, from: number, to: number, emit: (v: number) => void): void {
-    for (let i = from; i < to; i++) {
+  /**
+   * Feeds input samples x[from..to) (finite); writes the outputs that became available into
+   * `out` from index 0 and returns how many (at most ⌈(to − from)/q⌉ + D/q + 1).
+   */
+  push(x: ArrayLike<number>, from: number, to: number, out: Float64Array): number {
+    let i = from;
+    while (i < to && !this.started) {
       this.total++;
-      if (!this.started) {
-        this.pending.push(x[i]);
-        if (this.pending.length > this.d) this.start();
-        continue;
-      }
-      this.append(x[i]);
+      this.pending.push(x[i++]);
+      if (this.pending.length > this.d) this.start();
     }
-    if (this.started) this.drain(emit);
+    if (i < to) {
+      const n = to - i;
+      if (this.bufLen + n > this.buf.length) this.makeRoom(n);
+      const buf = this.buf;
+      let len = this.bufLen;
+      for (; i < to; i++) buf[len++] = x[i];
+      this.bufLen = len;
+      this.total += n;
+    }
+    return this.started ? this.drain(out, 0) : 0;
+  }
+
+  /** Frees or adds space for `n` more samples. */
+  private makeRoom(n: number): void {
+    const keepFrom = this.q * this.nextOut - this.d;
+    const drop = Math.max(0, Math.min(this.bufLen, keepFrom - this.bufStart));
+    if (drop > 0) {
+      this.buf.copyWithin(0, drop, this.bufLen);
+      this.bufStart += drop;
+      this.bufLen -= drop;
+    }
+    if (this.bufLen + n > this.buf.length) {
+      let cap = this.buf.length;
+      while (cap < this.bufLen + n) cap *= 2;
+      const nb = new Float64Array(cap);
+      nb.set(this.buf.subarray(0, this.bufLen));
+      this.buf = nb;
+    }
   }
 
   private start(): void {
@@ -155,7 +170,7 @@ export class FirDecimator {
     this.started = true;
   }
 
-  private drain(emit: (v: number) => void): void {
+  private drain(out: Float64Array, at: number): number {
     const h = this.h;
     const d = this.d;
     const q = this.q;
@@ -163,19 +178,21 @@ export class FirDecimator {
     const base = this.bufStart;
     const lastAbs = base + this.bufLen - 1;
     let j = this.nextOut;
+    let k0 = at;
     while (q * j + d <= lastAbs) {
       const c = q * j - base; // centre index in buf
       let acc = h[d] * buf[c];
       for (let k = 0; k < d; k++) acc += h[k] * (buf[c + d - k] + buf[c - d + k]);
-      emit(acc);
+      out[k0++] = acc;
       j++;
     }
     this.nextOut = j;
+    return k0 - at;
   }
 
-  /** Ends the stream: pads by odd reflection and emits the last outputs. */
-  finish(emit: (v: number) => void): void {
-    if (this.total === 0) return;
+  /** Ends the stream: pads by odd reflection and writes the last outputs into `out`; returns the count. */
+  finish(out: Float64Array): number {
+    if (this.total === 0) return 0;
     if (!this.started) {
       // Fewer than D + 1 samples: reflect what there is (short records only).
       const p = this.pending;
@@ -198,12 +215,19 @@ export class FirDecimator {
     const outs = Math.ceil(n / this.q);
     const h = this.h;
     const d = this.d;
+    let k0 = 0;
     while (this.nextOut < outs) {
       const c = this.q * this.nextOut - this.bufStart;
       let acc = h[d] * this.buf[c];
       for (let k = 0; k < d; k++) acc += h[k] * (this.buf[c + d - k] + this.buf[c - d + k]);
-      emit(acc);
+      out[k0++] = acc;
       this.nextOut++;
     }
+    return k0;
+  }
+
+  /** Upper bound of outputs from pushing n samples (or from finish, n = 0). */
+  maxOutputs(n: number): number {
+    return Math.ceil((n + this.d + this.q) / this.q) + 1 + Math.ceil(this.pending.length / this.q);
   }
 }

@@ -60,7 +60,7 @@ export class ConfigError extends Error {
   }
 }
 
-export function loadConfig(env: NodeJS.ProcessEnv = process.env, warn: (m: string) => void = console.warn): Config {
+export function loadConfig(env: Record<string, string | undefined> = process.env, warn: (m: string) => void = console.warn): Config {
   // Empty variables count as unset, so `PORT= npm start` behaves like no PORT at all.
   const present = Object.fromEntries(Object.entries(env).filter(([, v]) => v !== undefined && v !== ''));
   const parsed = configSchema.safeParse(present);

@@ -48,7 +48,8 @@ export const PERMISSIONS = {
 } as const satisfies Record<string, PermissionRule>;
 
 export type Permission = keyof typeof PERMISSIONS;
-export const PERMISSION_NAMES = Object.keys(PERMISSIONS) as Permission[];
+export const PERMISSION_NAMES: readonly Permission[] = Object.freeze(Object.keys(PERMISSIONS) as Permission[]);
+export const permissionSchema = z.enum(PERMISSION_NAMES as [Permission, ...Permission[]]);
 
 /**
  * Who may call an endpoint: a permission from the table, any signed-in person ('signedIn'),

@@ -69,7 +69,12 @@ async function phaseStore(file: string): Promise<Record<string, number>> {
 }
 
 async function child(phase: string, file: string) {
+  const cpu0 = process.cpuUsage();
   const out = phase === 'parse' ? await phaseParse(file) : await phaseStore(file);
+  const cpu = process.cpuUsage(cpu0);
+  // CPU seconds of this process (module loading included): on a busy machine wall time says
+  // more about the neighbours than about the ingest.
+  out.cpuSeconds = (cpu.user + cpu.system) / 1e6;
   out.peakRssMb = process.resourceUsage().maxRSS / 1024;
   process.stdout.write(`${JSON.stringify(out)}\n`);
 }
@@ -121,8 +126,9 @@ async function main() {
     JSON.parse(execFileSync(tsx, [__filename, '--phase', phase, file], { env, encoding: 'utf8' }).trim().split('\n').pop()!) as Record<string, number>;
   const show = (name: string, r: Record<string, number>) =>
     console.log(
-      `${name}: ${r.seconds.toFixed(2)} s, ${r.mbPerS.toFixed(1)} MB/s, ${Math.round(r.rowsPerS).toLocaleString('en')} rows/s, peak RSS ${r.peakRssMb.toFixed(0)} MB`,
+      `${name}: ${r.seconds.toFixed(2)} s wall (${r.cpuSeconds.toFixed(2)} s CPU), ${r.mbPerS.toFixed(1)} MB/s, ${Math.round(r.rowsPerS).toLocaleString('en')} rows/s, peak RSS ${r.peakRssMb.toFixed(0)} MB`,
     );
+  console.log(`load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')} on ${os.cpus().length} CPUs`);
   show('parse (no database)', run('parse', process.env));
 
   let pg: { stop(): void } | null = null;

@@ -3,7 +3,7 @@
 // POST/PUT/PATCH/DELETE (sign-in included). Sign-in rotates the session, so use the csrfToken the
 // sign-in response returns from then on. After sign-out fetch a fresh token.
 import { z } from 'zod';
-import { ROLES, PERMISSION_NAMES } from '../roles';
+import { ROLES, permissionSchema } from '../roles';
 import { emailSchema, isoDateTime } from './common';
 
 export const personSchema = z.object({
@@ -31,7 +31,7 @@ export type SignInBody = z.infer<typeof signInBodySchema>;
 
 export const meResponseSchema = z.object({
   person: personSchema,
-  permissions: z.array(z.enum(PERMISSION_NAMES as [string, ...string[]])),
+  permissions: z.array(permissionSchema),
   csrfToken: z.string(),
 });
 export type MeResponse = z.infer<typeof meResponseSchema>;
