@@ -1,5 +1,5 @@
-import { Redirect, usePathname } from 'expo-router';
-import type { ReactNode } from 'react';
+import { router, usePathname } from 'expo-router';
+import { useEffect, type ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { MeResponse } from '@/shared/api/auth';
 import { errorMessage } from '@/hooks/api-client';
@@ -15,23 +15,31 @@ export function AuthGate({ children }: { children: (me: MeResponse) => ReactNode
   const me = useMeQuery();
   const pathname = usePathname();
   // Signed out wins over a cached person: the session may have ended since that answer.
-  if (isSignedOut(me.error)) {
+  const signedOut = isSignedOut(me.error);
+  useEffect(() => {
+    if (!signedOut) return;
     const next = pathname && pathname !== '/' ? pathname : undefined;
-    return <Redirect href={next ? `/sign-in?next=${encodeURIComponent(next)}` : '/sign-in'} />;
-  }
+    router.replace(next ? `/sign-in?next=${encodeURIComponent(next)}` : '/sign-in');
+  }, [signedOut, pathname]);
+
+  if (signedOut) return <Centered><LoadingState label="Your session has ended. Opening sign-in…" /></Centered>;
   if (me.data) return <>{children(me.data)}</>;
   if (me.error) {
     return (
-      <View style={styles.center}>
+      <Centered>
         <ErrorState title="Could not check who is signed in" message={errorMessage(me.error)} onRetry={() => void me.refetch()} />
-      </View>
+      </Centered>
     );
   }
   return (
-    <View style={styles.center}>
+    <Centered>
       <LoadingState label="Checking your session…" />
-    </View>
+    </Centered>
   );
+}
+
+function Centered({ children }: { children: ReactNode }) {
+  return <View style={styles.center}>{children}</View>;
 }
 
 const styles = StyleSheet.create({

@@ -144,6 +144,8 @@ export async function api<S extends z.ZodType = z.ZodType<unknown>>(
       resetCsrfToken();
       raw = await send();
     } else {
+      // The session is gone, and its token with it; the next write fetches a fresh one.
+      if (e instanceof ApiError && e.code === 'UNAUTHENTICATED') resetCsrfToken();
       throw e;
     }
   }

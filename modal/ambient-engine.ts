@@ -167,20 +167,26 @@ class GapConditioner {
     private readonly onLongGap: (start: number, end: number) => void,
   ) {}
 
-  /** Samples v[0..n) at absolute indices start…start+n−1. */
+  /** Samples v[0..n) at absolute indices start…start+n−1 (missing samples are NaN). */
   pushChunk(v: Float64Array, n: number, start: number): void {
     const out = this.out;
     out.ensure(n);
-    for (let j = 0; j < n; j++) {
-      const x = v[j];
-      if (this.pending === 0 && x === x && this.seenFinite) {
-        // fast path: a finite sample with no gap pending (x === x rules out NaN; ±Inf were mapped to NaN)
-        if (out.len === out.buf.length) out.ensure(n - j);
-        out.buf[out.len++] = x;
-        this.last = x;
-        continue;
+    let j = 0;
+    while (j < n) {
+      if (this.pending === 0 && this.seenFinite) {
+        // fast path: copy the run of finite samples up to the next missing one
+        let e = j;
+        while (e < n && v[e] === v[e]) e++;
+        if (e > j) {
+          out.buf.set(v.subarray(j, e), out.len);
+          out.len += e - j;
+          this.last = v[e - 1];
+          j = e;
+          continue;
+        }
       }
-      this.push(x, start + j);
+      this.push(v[j], start + j);
+      j++;
     }
   }
 
@@ -266,7 +272,7 @@ interface LineInfo {
 /** Screening threshold of the periodogram/Welch ratio Λ for line candidates. */
 const FORCED_SCREEN = 12;
 /** Exponent of the per-mode channel weights. */
-const MODE_WEIGHT_POWER = Number(process.env.AMB_GAMMA ?? 1);
+const MODE_WEIGHT_POWER = 1;
 /** Lines tested per window. */
 const MAX_LINES = 3;
 
@@ -284,8 +290,6 @@ export interface EngineMeta {
 }
 
 /** Streaming ambient scanner; `onWindow` receives each window as soon as it is complete. */
-export const PROF: Record<string, number> = {};
-const tick = (k: string, t0: number) => { PROF[k] = (PROF[k] ?? 0) + performance.now() - t0; };
 export class AmbientEngine {
   private readonly o: ResolvedAmbientOptions;
   private readonly meta: EngineMeta;
@@ -421,14 +425,10 @@ export class AmbientEngine {
       // sub-chunks end on raw block boundaries so quality blocks close in order
       const blockEnd = (Math.floor(this.rawCount / this.rawBlock) + 1) * this.rawBlock;
       const n = Math.min(to - i, blockEnd - this.rawCount);
-      let t0 = performance.now();
       this.ingest(arrays, i, i + n);
-      tick('ingest', t0); t0 = performance.now();
       i += n;
       this.derive();
-      tick('derive', t0); t0 = performance.now();
       this.process();
-      tick('process', t0);
     }
   }
 
@@ -481,41 +481,67 @@ export class AmbientEngine {
     for (let u = 0; u < this.used.length; u++) {
       const x = arrays[this.usedInput[u]];
       const q = this.qualityCur[u];
-      const isAngle = this.isAngleUsed[u];
+      const typed = x instanceof Float64Array;
+      if (typed) q.set(x.subarray(from, to), offInBlock);
+      else for (let j = 0; j < n; j++) q[offInBlock + j] = x[from + j];
+      if (!this.varies[u]) {
+        let first = this.firstFinite[u];
+        for (let j = 0; j < n; j++) {
+          const v = x[from + j];
+          if (v - v !== 0) continue;
+          if (first !== first) first = v;
+          else if (v !== first) {
+            this.varies[u] = true;
+            break;
+          }
+        }
+        this.firstFinite[u] = first;
+      }
+      if (!this.isAngleUsed[u]) {
+        // ±Inf count as missing: map every non-finite sample to NaN
+        let clean = typed;
+        if (typed) {
+          for (let j = 0; j < n; j++) {
+            const v = x[from + j];
+            if (v - v !== 0) {
+              clean = false;
+              break;
+            }
+          }
+        }
+        if (clean) {
+          this.cond[u].pushChunk((x as Float64Array).subarray(from, to), n, start);
+        } else {
+          for (let j = 0; j < n; j++) {
+            const v = x[from + j];
+            uw[j] = v - v === 0 ? v : NaN;
+          }
+          this.cond[u].pushChunk(uw, n, start);
+        }
+        continue;
+      }
       let prev = this.unwrapPrev[u];
       let offset = this.unwrapOffset[u];
-      let first = this.firstFinite[u];
-      let varies = this.varies[u];
       for (let j = 0; j < n; j++) {
         let v = x[from + j];
-        q[offInBlock + j] = v;
         if (v - v === 0) {
-          // finite
-          if (!varies) {
-            if (first !== first) first = v;
-            else if (v !== first) varies = true;
-          }
-          if (isAngle) {
-            // numpy.unwrap rule with period 360°, continuing across missing samples
-            if (prev === prev) {
-              const dd = v - prev;
-              if (dd >= 180 || dd <= -180) {
-                let ddmod = ((((dd + 180) % 360) + 360) % 360) - 180;
-                if (ddmod === -180 && dd > 0) ddmod = 180;
-                offset += ddmod - dd;
-              }
+          // numpy.unwrap rule with period 360°, continuing across missing samples
+          if (prev === prev) {
+            const dd = v - prev;
+            if (dd >= 180 || dd <= -180) {
+              let ddmod = ((((dd + 180) % 360) + 360) % 360) - 180;
+              if (ddmod === -180 && dd > 0) ddmod = 180;
+              offset += ddmod - dd;
             }
-            prev = v;
-            v += offset;
           }
+          prev = v;
+          v += offset;
         } else v = NaN;
         uw[j] = v;
       }
       this.cond[u].pushChunk(uw, n, start);
       this.unwrapPrev[u] = prev;
       this.unwrapOffset[u] = offset;
-      this.firstFinite[u] = first;
-      this.varies[u] = varies;
     }
     this.rawCount += n;
     if (this.rawCount % this.rawBlock === 0) {
@@ -583,9 +609,7 @@ export class AmbientEngine {
     let ready = Infinity;
     for (const s of this.series) ready = Math.min(ready, s.end);
     while ((this.nextBlock + 1) * o.blockSamples <= ready) {
-      const tb = performance.now();
       this.computeBlock(this.nextBlock);
-      tick('block', tb);
       this.nextBlock++;
     }
     for (;;) {
@@ -707,9 +731,7 @@ export class AmbientEngine {
     const rate = this.meta.rate;
     const start = this.meta.startTime + (ws * o.factor) / rate;
     const end = start + o.windowSamples / o.analysisRate;
-    const tq = performance.now();
     const quality = this.windowQuality(ws, we);
-    tick('wquality', tq);
     const reason = this.skipReason(ws, we, quality);
     if (reason) {
       this.onWindow({ start, end, modes: [], quality, skipped: true, reason });
@@ -891,11 +913,10 @@ export class AmbientEngine {
       for (let t = 0; t < W; t++) buf[t] = s.data[off + t] - m;
       buf.fill(0, W);
       this.longFft.transform(buf, re, im, nL);
+      const map = this.lineBinMap(kL0, nbL, nL);
       for (let i = 0; i < nbL; i++) {
         const k = kL0 + i;
-        const f = (k * fsA) / nL;
-        const j = Math.min(this.nb - 1, Math.max(0, Math.round((f * this.nfft) / fsA) - this.kLo));
-        const d = welchC[j];
+        const d = welchC[map[i]];
         lam[i] = d > 0 ? (re[k] * re[k] + im[k] * im[k]) / W / d : 0;
       }
       for (let i = 1; i < nbL - 1; i++) {
@@ -961,11 +982,23 @@ export class AmbientEngine {
     return lines;
   }
 
+  private binMap: Int32Array | null = null;
+  /** Band bin of the segment spectra nearest each band bin of the full-window periodogram. */
+  private lineBinMap(kL0: number, nbL: number, nL: number): Int32Array {
+    if (this.binMap && this.binMap.length === nbL) return this.binMap;
+    const fsA = this.o.analysisRate;
+    const map = new Int32Array(nbL);
+    for (let i = 0; i < nbL; i++) {
+      const f = ((kL0 + i) * fsA) / nL;
+      map[i] = Math.min(this.nb - 1, Math.max(0, Math.round((f * this.nfft) / fsA) - this.kLo));
+    }
+    this.binMap = map;
+    return map;
+  }
+
   private estimate(ws: number, we: number): AmbientMode[] | string {
     const o = this.o;
-    let t0 = performance.now();
     const ac = this.autocorrelations(ws, we);
-    tick('acf', t0); t0 = performance.now();
     if (typeof ac === 'string') return ac;
     const fsA = o.analysisRate;
     const [lo, hi] = o.bandHz;
@@ -973,9 +1006,7 @@ export class AmbientEngine {
     const segIdx: number[] = [];
     for (let s = Math.ceil(ws / o.segmentHop); s * o.segmentHop + o.segmentSamples <= we; s++) segIdx.push(s);
     const segs = segIdx.map((s) => this.segment(s));
-    tick('segs', t0); t0 = performance.now();
     const lines = o.forced.enabled ? this.detectLines(ws, segs, segIdx, ac) : [];
-    tick('lines', t0); t0 = performance.now();
     const stage1 = this.fitModel(this.pooled(ac, lines, null));
     if (typeof stage1 === 'string') return stage1;
     const modes: AmbientMode[] = [];
@@ -1023,7 +1054,6 @@ export class AmbientEngine {
         fr.push(mm.frequencyHz);
         dr.push(mm.dampingPercent);
       }
-      if (process.env.AMB_DEBUG) console.log('DEBUG', m.frequencyHz.toFixed(3), m.dampingPercent.toFixed(2), 'reps ok', fr.length, dr.map((x) => x.toFixed(2)).join(' '));
       let fCi: [number, number];
       let dCi: [number, number];
       if (fr.length >= Math.max(3, o.jackknifeGroups - 2)) {
@@ -1077,7 +1107,6 @@ export class AmbientEngine {
         coherence: ln.coherence,
       });
     }
-    tick('modes', t0);
     modes.sort((p, q) => p.frequencyHz - q.frequencyHz);
     return modes;
   }

@@ -25,8 +25,6 @@ export {
   type ForcedDetectionOptions,
   type ResolvedAmbientOptions,
 } from './ambient-options';
-export { welch, csd } from './spectral';
-export { mac, assignTracks } from './tracking';
 
 /** Checks the record's structure (not its values); returns the common sample count. */
 export function checkRecord(record: SampledRecord): number {
@@ -106,8 +104,9 @@ export function estimateAmbientWindow(record: SampledRecord, options?: AmbientOp
     channelNames: record.channels.map((c) => c.name),
     durationSeconds: n / record.rate,
   });
+  // one window; blocks as a scan with the same options would cut them, so the sums (and the
+  // result) are identical to the scan's first window
   const single: ResolvedAmbientOptions = { ...o, stepSamples: o.windowSamples, stepSeconds: o.windowSamples / o.analysisRate };
-  single.blockSamples = gcd(single.stepSamples, single.groupSamples);
   // the FIR looks ahead by its delay: feed a little past the window so the end is real data
   const needed = Math.min(n, o.windowSamples * o.factor + 64 * o.factor + 512);
   let result: AmbientWindowResult | null = null;
@@ -116,11 +115,6 @@ export function estimateAmbientWindow(record: SampledRecord, options?: AmbientOp
   });
   if (!result) throw new ModalInputError(`the record is too short for one window of ${o.windowSeconds} s`);
   return result;
-}
-
-function gcd(a: number, b: number): number {
-  while (b) [a, b] = [b, a % b];
-  return a;
 }
 
 /**

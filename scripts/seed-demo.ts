@@ -56,6 +56,8 @@ export interface DemoRingdown {
   /** Seconds recorded after the event, and of those fitted. */
   seconds: number;
   fitSeconds: number;
+  /** Channels fitted (default: all of the recording). */
+  fitChannels?: string[];
 }
 export interface DemoPlan {
   day: DemoDay | null;
@@ -80,7 +82,9 @@ export function demoPlan(now: number): DemoPlan {
     day: { start: dayStart, hours: 24, rate: 10, seed: 101, channels: LIGHT_CHANNELS, stepSeconds: 300 },
     ringdowns: [
       { start: blockStart - 90 * 60, event: 'line-trip', transferMw: 2000, seed: 201, seconds: 40, fitSeconds: 20 },
-      { start: blockStart - 45 * 60, event: 'generator-loss', transferMw: 1500, seed: 202, seconds: 40, fitSeconds: 20 },
+      // after a generator loss the classical model's frequency keeps falling (no governors): the
+      // corridor flows show the swing without the drift of the angles and frequencies
+      { start: blockStart - 45 * 60, event: 'generator-loss', transferMw: 1500, seed: 202, seconds: 40, fitSeconds: 20, fitChannels: ['moorgate.mw', 'eastfell-ridge.mw'] },
     ],
     ambient: DEMO_LEVELS_MW.map((mw, i) => ({ start: blockStart + i * blockMinutes * 60, transferMw: mw, minutes: blockMinutes, seed: 300 + i })),
   };
@@ -216,7 +220,9 @@ export async function seedDemoPlan(
       writeRecordCsv(file, sim.record);
       const from = new Date(Math.round(sim.eventTime * 1000)).toISOString();
       const to = new Date(Math.round((sim.eventTime + r.fitSeconds) * 1000)).toISOString();
-      await keep(await storeDemoFile(ctx.db, { file, fileName: `tarrow-${r.event}-${stamp(r.start)}.csv`, uploadedBy, fits: [{ from, to }] }));
+      await keep(
+        await storeDemoFile(ctx.db, { file, fileName: `tarrow-${r.event}-${stamp(r.start)}.csv`, uploadedBy, fits: [{ from, to, ...(r.fitChannels ? { channels: r.fitChannels } : {}) }] }),
+      );
       fs.rmSync(file, { force: true });
       ctx.log.info(`demo: stored a ${r.event} ring-down at ${r.transferMw} MW`);
     }

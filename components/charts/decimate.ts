@@ -58,7 +58,7 @@ export function decimateMinMax<T extends XY>(points: readonly T[], buckets: numb
 }
 
 /** Points whose x lies in [from, to], plus one neighbour either side so lines reach the edges. */
-export function clipToDomain<T extends XY>(points: readonly T[], from: number, to: number): T[] {
+export function clipToDomain<T extends { x: number }>(points: readonly T[], from: number, to: number): T[] {
   let a = 0;
   while (a < points.length && points[a].x < from) a++;
   let b = points.length - 1;

@@ -107,16 +107,14 @@ function MessageLink({ m, active }: { m: OutboxSummary; active: boolean }) {
           testID={`outbox-message-${m.id}`}
           style={StyleSheet.flatten([styles.item, active && styles.itemActive])}
         >
-          <View style={styles.itemHead}>
-            <Text bold numberOfLines={1} style={styles.subject}>
-              {m.subject || '(no subject)'}
-            </Text>
-            <Text variant="caption" mono muted>
-              {formatDateTime(m.receivedAt)}
-            </Text>
-          </View>
+          <Text bold numberOfLines={2}>
+            {m.subject || '(no subject)'}
+          </Text>
           <Text variant="small" mono muted numberOfLines={1}>
             to {m.to}
+          </Text>
+          <Text variant="caption" mono muted>
+            {formatDateTime(m.receivedAt)}
           </Text>
         </Pressable>
       </Link>
@@ -171,8 +169,6 @@ const styles = StyleSheet.create({
   list: { gap: space.xs },
   item: { padding: space.md, borderRadius: radii.md, borderWidth: 1, borderColor: colors.rule, backgroundColor: '#FFFFFF', gap: 2 },
   itemActive: { borderColor: colors.accent, backgroundColor: colors.accentSoft },
-  itemHead: { flexDirection: 'row', justifyContent: 'space-between', alignItems: 'baseline', gap: space.sm },
-  subject: { flexShrink: 1 },
   back: { marginBottom: space.md },
   headers: { marginTop: space.md, gap: space.xxs },
   header: { flexDirection: 'row', gap: space.sm },

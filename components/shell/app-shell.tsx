@@ -1,6 +1,7 @@
 import { router, usePathname } from 'expo-router';
-import type { ReactNode } from 'react';
-import { StyleSheet, View } from 'react-native';
+import { useEffect, useState, type ReactNode } from 'react';
+import { Pressable, StyleSheet, View } from 'react-native';
+import Svg, { Circle } from 'react-native-svg';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import type { MeResponse } from '@/shared/api/auth';
 import { ROLE_LABELS } from '@/shared/roles';
@@ -24,6 +25,9 @@ export function AppShell({ me, children }: { me: MeResponse; children: ReactNode
   const sections = sectionsFor(me.person.role);
   const active = activeSection(pathname, sections);
   const signOut = useSignOutMutation();
+  const [moreOpen, setMoreOpen] = useState(false);
+  // Close the overflow sheet whenever the screen changes.
+  useEffect(() => setMoreOpen(false), [pathname]);
   const onSignOut = () =>
     signOut.mutate(undefined, {
       onSettled: () => router.replace('/sign-in'),
@@ -64,6 +68,12 @@ export function AppShell({ me, children }: { me: MeResponse; children: ReactNode
     );
   }
 
+  // Phones fit five tabs; beyond that the last ones move into a "More" sheet.
+  const maxTabs = bp.isCompact ? 5 : 8;
+  const tabs = sections.length > maxTabs ? sections.slice(0, maxTabs - 1) : sections;
+  const more = sections.length > maxTabs ? sections.slice(maxTabs - 1) : [];
+  const moreActive = more.some((s) => s.key === active);
+
   return (
     <View style={[styles.narrowRoot, { paddingTop: insets.top }]}>
       <View style={styles.topBar} role="banner">
@@ -88,12 +98,43 @@ export function AppShell({ me, children }: { me: MeResponse; children: ReactNode
       <View style={styles.main} role="main">
         {children}
       </View>
+      {moreOpen ? (
+        <View style={[styles.sheet, { bottom: layout.tabBarHeight + insets.bottom }]} testID="nav-more-sheet">
+          {more.map((s) => (
+            <NavLink key={s.key} section={s} active={active === s.key} variant="rail" />
+          ))}
+        </View>
+      ) : null}
       <View style={[styles.tabBar, { paddingBottom: insets.bottom }]} role="navigation" aria-label="Sections">
-        {sections.map((s) => (
+        {tabs.map((s) => (
           <NavLink key={s.key} section={s} active={active === s.key} variant="tab" />
         ))}
+        {more.length > 0 ? (
+          <Pressable
+            role="button"
+            aria-expanded={moreOpen}
+            testID="nav-more"
+            onPress={() => setMoreOpen((o) => !o)}
+            style={styles.moreTab}
+          >
+            <MoreIcon color={moreActive || moreOpen ? colors.accent : colors.inkMuted} />
+            <Text variant="caption" bold={moreActive} color={moreActive || moreOpen ? colors.accent : colors.ink} style={styles.moreLabel}>
+              More
+            </Text>
+          </Pressable>
+        ) : null}
       </View>
     </View>
+  );
+}
+
+function MoreIcon({ color }: { color: string }) {
+  return (
+    <Svg width={22} height={22} viewBox="0 0 24 24" aria-hidden>
+      {[5, 12, 19].map((cx) => (
+        <Circle key={cx} cx={cx} cy={12} r={1.8} fill={color} />
+      ))}
+    </Svg>
   );
 }
 
@@ -128,6 +169,22 @@ const styles = StyleSheet.create({
   },
   topRight: { flexDirection: 'row', alignItems: 'center', gap: space.xs, flexShrink: 1 },
   who: { alignItems: 'flex-end', flexShrink: 1 },
+  moreTab: { flex: 1, minHeight: layout.tabBarHeight, alignItems: 'center', justifyContent: 'center', paddingTop: space.xs, gap: 2 },
+  moreLabel: { fontSize: 12 },
+  sheet: {
+    position: 'absolute',
+    right: space.sm,
+    left: space.sm,
+    padding: space.sm,
+    backgroundColor: colors.surface,
+    borderWidth: 1,
+    borderColor: colors.rule,
+    borderRadius: 12,
+    shadowColor: colors.ink,
+    shadowOpacity: 0.12,
+    shadowRadius: 12,
+    shadowOffset: { width: 0, height: 4 },
+  },
   tabBar: {
     flexDirection: 'row',
     borderTopWidth: 1,

@@ -1,9 +1,6 @@
 // The audit trail: who did what to what, when, from where.
-import { desc } from 'drizzle-orm';
 import type { DbOrTx } from '../client';
 import { auditLog } from '../schema';
-
-export type AuditRow = typeof auditLog.$inferSelect;
 
 export interface AuditEntry {
   personId: number | null;
@@ -21,12 +18,4 @@ export async function recordAudit(db: DbOrTx, params: AuditEntry): Promise<void>
     details: params.details ?? {},
     ip: params.ip ?? null,
   });
-}
-
-export async function listAudit(db: DbOrTx, params: { limit?: number } = {}): Promise<AuditRow[]> {
-  return db
-    .select()
-    .from(auditLog)
-    .orderBy(desc(auditLog.at), desc(auditLog.id))
-    .limit(params.limit ?? 100);
 }

@@ -57,21 +57,12 @@ export async function countActiveAdmins(db: DbOrTx): Promise<number> {
  * End every session of a person (connect-pg-simple keeps passport's serialised user id at
  * sess.passport.user). Returns how many sessions ended.
  */
-export async function deleteSessionsOfPerson(db: DbOrTx, params: { personId: number; exceptSid?: string }): Promise<number> {
-  const who = sql`(${sessions.sess}::jsonb -> 'passport' ->> 'user') = ${String(params.personId)}`;
+export async function deleteSessionsOfPerson(db: DbOrTx, params: { personId: number }): Promise<number> {
   const rows = await db
     .delete(sessions)
-    .where(params.exceptSid ? and(who, sql`${sessions.sid} <> ${params.exceptSid}`) : who)
+    .where(sql`(${sessions.sess}::jsonb -> 'passport' ->> 'user') = ${String(params.personId)}`)
     .returning({ sid: sessions.sid });
   return rows.length;
-}
-
-export async function countSessionsOfPerson(db: DbOrTx, params: { personId: number }): Promise<number> {
-  const [row] = await db
-    .select({ n: count() })
-    .from(sessions)
-    .where(sql`(${sessions.sess}::jsonb -> 'passport' ->> 'user') = ${String(params.personId)}`);
-  return row.n;
 }
 
 /**

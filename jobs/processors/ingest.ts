@@ -8,6 +8,7 @@
 // kept until the last attempt. Runs in process: the work is streaming I/O in small slices.
 //
 // The worker must see the server's spool folder (KEEL_SPOOL_DIR): same machine or a shared volume.
+import fs from 'node:fs';
 import path from 'node:path';
 import { Queue, UnrecoverableError, Worker, type ConnectionOptions, type Job, type JobsOptions } from 'bullmq';
 import { z } from 'zod';
@@ -116,6 +117,19 @@ export async function runIngestJob(ctx: IngestContext, job: JobLike): Promise<In
     const done = await finishAnalysis(ctx.db, { id: analysis.id });
     if (done) await publishProgress(ctx, done);
     return { recordingId: recording.id, frames: recording.sampleCount ?? 0, channels: recording.channelCount ?? 0 };
+  }
+  for (const f of p.files) {
+    const present = await fs.promises.access(f.path).then(
+      () => true,
+      () => false,
+    );
+    if (!present) {
+      // Swept after a day in the queue, or this worker does not share the server's spool folder.
+      const reason = `The uploaded file "${f.originalName}" is no longer in the spool folder (worker on another machine than the server, or queued too long); upload it again`;
+      await failIngest(ctx, analysis, recording.id, reason);
+      await removeSpooled(paths);
+      throw new UnrecoverableError(reason);
+    }
   }
   const running = await markAnalysisRunning(ctx.db, { id: analysis.id });
   if (running) await publishProgress(ctx, running);

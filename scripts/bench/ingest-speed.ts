@@ -96,8 +96,10 @@ function writeCsv(file: string, minutes: number, nChannels: number, rate: number
     names.forEach((n, c) => {
       walk[c] += 0.01 * rnd();
       const osc = Math.sin(2 * Math.PI * 0.31 * t + c) * 0.5;
-      const v = n.endsWith('.freq') ? 60 + 0.001 * (osc + walk[c]) : n.endsWith('.mw') ? 1200 + 40 * (osc + walk[c]) : 10 * c + osc + walk[c];
-      line += ',' + v.toFixed(6);
+      // Angles spread over ±170°, frequencies near 60 Hz, MW near 1200: 7 decimals, as PMU
+      // exports often carry, make the hour about 30 MB.
+      const v = n.endsWith('.freq') ? 60 + 0.001 * (osc + walk[c]) : n.endsWith('.mw') ? 1200 + 40 * (osc + walk[c]) : -170 + 17 * c + osc + walk[c];
+      line += ',' + v.toFixed(7);
     });
     buf += line + '\n';
     if (buf.length > 1 << 20) {

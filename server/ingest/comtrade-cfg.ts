@@ -16,7 +16,10 @@ export interface AnalogChannel {
   phase: string;
   circuit: string;
   unit: string;
-  /** value = a · raw + b (standard). */
+  /**
+   * value = a · raw + b (standard), already multiplied by primary/secondary when the channel's
+   * P/S flag says the values are secondary (so that stored values are primary quantities).
+   */
   a: number;
   b: number;
 }
@@ -115,7 +118,14 @@ export function parseComtradeConfig(text: string, label: string, lineOffset = 0)
     const a = num(k, f[5], `analog channel ${c} multiplier a`);
     const b = num(k, f[6], `analog channel ${c} offset b`);
     if (a === 0) fail(k, `analog channel ${c} multiplier a is 0, which would make every value ${b}`);
-    analog.push({ index, id, phase: f[2], circuit: f[3], unit: f[4], a, b });
+    let factor = 1;
+    if (f.length >= 13 && f[12].toUpperCase() === 'S') {
+      const primary = num(k, f[10], `analog channel ${c} primary ratio`);
+      const secondary = num(k, f[11], `analog channel ${c} secondary ratio`);
+      if (secondary === 0) fail(k, `analog channel ${c} secondary ratio is 0`);
+      factor = primary / secondary;
+    }
+    analog.push({ index, id, phase: f[2], circuit: f[3], unit: f[4], a: a * factor, b: b * factor });
   }
   for (let c = 1; c <= nD; c++) {
     const f = next(`digital channel line ${c} of ${nD}`);

@@ -1,7 +1,8 @@
 // The COMTRADE data file (.dat), IEEE C37.111-1999/-2013 (standard), streamed row by row.
 // Every row (ASCII line or binary record) holds: sample number, timestamp (µs × timemult from the
 // first sample), the analog values as raw integers (value = a · raw + b), the digital words.
-//  - ASCII: comma-separated; an empty analog field is a missing value (dropout).
+//  - ASCII: comma-separated; an empty analog field, or the raw value 99999 (the 1999 edition's
+//    marker, also written by modal/formats), is a missing value (dropout).
 //  - BINARY / BINARY32: little-endian uint32 sample number and timestamp, int16 / int32 analog
 //    values, digital channels packed 16 to a uint16; raw 0x8000 / 0x80000000 marks a missing
 //    value; timestamp 0xFFFFFFFF marks a missing timestamp.
@@ -13,6 +14,9 @@ import { csvRecords } from './csv-stream';
 import { FileRefusedError } from './errors';
 import type { SourceRow } from './source';
 import { numberProblem, parseCell, quote } from './text-values';
+
+/** Raw ASCII value marking a missing sample. */
+export const ASCII_MISSING = 99999;
 
 export interface DatOptions {
   cfg: ComtradeConfig;
@@ -117,7 +121,7 @@ export async function* asciiDatRows(input: Readable, opts: DatOptions, select: n
         const cell = fields[2 + select[k]];
         const raw = parseCell(cell);
         if (raw === undefined) throw new FileRefusedError(loc(), `analog channel ${ch.index} ${quote(ch.id)}: ${numberProblem(cell)}`);
-        values[k] = ch.a * raw + ch.b;
+        values[k] = raw === ASCII_MISSING ? NaN : ch.a * raw + ch.b;
       }
       yield { line, time: timeOf(cfg, sample, ts), timeText: fields[1] === '' ? `sample ${sample}` : `${fields[1]} µs`, values };
     }

@@ -36,7 +36,9 @@ export interface ComtradePair {
 
 export async function openComtradeSource(files: ComtradePair): Promise<IngestSource> {
   const cfgStat = await fs.promises.stat(files.cfgPath);
-  if (cfgStat.size > MAX_CFG_BYTES) decodeCfg(Buffer.alloc(MAX_CFG_BYTES + 1), files.cfgName);
+  if (cfgStat.size > MAX_CFG_BYTES) {
+    throw new FileRefusedError(files.cfgName, `the configuration file is larger than ${MAX_CFG_BYTES / 1024} KiB; is it really a .cfg?`);
+  }
   const cfg = parseComtradeConfig(decodeCfg(await fs.promises.readFile(files.cfgPath), files.cfgName), files.cfgName);
   const { size } = await fs.promises.stat(files.datPath);
   const opts: DatOptions = { cfg, label: files.datName, cfgLabel: files.cfgName };

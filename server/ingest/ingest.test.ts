@@ -14,6 +14,8 @@ import {
   type Series,
 } from '../../tests/fixtures-bad/make-files';
 import { ingestToMemory, makeTmpDir, refusal, writeUpload } from '../../tests/fixtures-bad/harness';
+import { writeCff, writeComtrade } from '../../modal/formats/comtrade';
+import { writeCsv } from '../../modal/formats/csv';
 import { UnmappedColumnsError } from './errors';
 
 const dir = makeTmpDir();
@@ -174,6 +176,27 @@ describe('CSV', () => {
     });
   });
 
+  it("reads the CSV the estimators' command line writes (modal/formats writeCsv), epoch and ISO times", async () => {
+    const n = 500;
+    const record = {
+      startTime: 1_735_689_600.25,
+      rate: 30,
+      channels: [
+        { name: 'moorgate.angle', values: Float64Array.from({ length: n }, (_, i) => 12 + Math.sin(i / 7)) },
+        { name: 'moorgate.mw', values: Float64Array.from({ length: n }, (_, i) => (i === 42 ? NaN : 1200 + i / 10)) },
+      ],
+    };
+    for (const time of ['epoch', 'iso'] as const) {
+      const text = writeCsv(record, { time, decimals: 6 });
+      const r = await ingestToMemory(writeUpload(dir, [{ name: `cli-${time}.csv`, content: text }]));
+      expect(r.summary.rate).toBe(30);
+      expect(r.summary.frames).toBe(n);
+      expect(r.summary.startTime).toBeCloseTo(record.startTime, 3);
+      expect(r.series['moorgate.mw'][42]).toBeNaN();
+      for (let i = 0; i < n; i += 37) expect(r.series['moorgate.angle'][i]).toBeCloseTo(record.channels[0].values[i], 6);
+    }
+  });
+
   it('reports the first fault in file order, even when the CSV tokenizer meets a later one first', async () => {
     const s = tarrowSeries(6000);
     const lines = csvText(s).trimEnd().split('\n');
@@ -274,6 +297,51 @@ describe('COMTRADE (IEEE C37.111, standard)', () => {
     expect(r.summary.gaps).toBe(1);
     expect(r.summary.missingFrames).toBe(10);
     expect(r.series['moorgate.angle'][55]).toBeNaN();
+  });
+
+  it("reads the COMTRADE the estimators' command line writes (modal/formats): ASCII, BINARY, .cff", async () => {
+    const n = 300;
+    const record = {
+      startTime: 1_735_689_600.5,
+      rate: 60,
+      channels: [
+        { name: 'windlow.angle', values: Float64Array.from({ length: n }, (_, i) => -40 + 3 * Math.sin(i / 9)) },
+        { name: 'windlow.freq', values: Float64Array.from({ length: n }, (_, i) => (i === 17 ? NaN : 60 + 0.004 * Math.cos(i / 5))) },
+      ],
+    };
+    const check = (r: Awaited<ReturnType<typeof ingestToMemory>>, rawMax: number) => {
+      expect(r.summary.rate).toBe(60);
+      expect(r.summary.startTime).toBeCloseTo(record.startTime, 6);
+      expect(r.series['windlow.freq'][17]).toBeNaN();
+      record.channels.forEach((c) => {
+        // The writer spreads each channel's span over ±rawMax counts: half a count of error at most.
+        const span = Math.max(...c.values.filter(Number.isFinite)) - Math.min(...c.values.filter(Number.isFinite));
+        const tolerance = (span / 2 / rawMax) * 0.5 * (1 + 1e-9);
+        for (let i = 0; i < n; i++) if (i !== 17) expect(Math.abs(r.series[c.name][i] - c.values[i])).toBeLessThanOrEqual(tolerance);
+      });
+    };
+    for (const fileType of ['ASCII', 'BINARY'] as const) {
+      const { cfg, dat } = writeComtrade(record, { fileType });
+      const r = await ingestToMemory(
+        writeUpload(dir, [
+          { name: `cli-${fileType}.cfg`, content: cfg },
+          { name: `cli-${fileType}.dat`, content: Buffer.from(dat) },
+        ]),
+      );
+      check(r, fileType === 'ASCII' ? 99998 : 32767);
+    }
+    check(await ingestToMemory(writeUpload(dir, [{ name: 'cli.cff', content: writeCff(record) }])), 99998);
+  });
+
+  it('converts secondary values to primary (P/S flag S: × primary / secondary)', async () => {
+    const cfg = comtradeCfg(s, { replaceLine: { 4: '3,saltreach-bay.angle,,,deg,0.001,0,0,-32767,32767,2,1,S' } });
+    const r = await ingestToMemory(
+      writeUpload(dir, [
+        { name: 'ps.cfg', content: cfg },
+        { name: 'ps.dat', content: comtradeAsciiDat(s) },
+      ]),
+    );
+    expect(r.series['saltreach-bay.angle'][5]).toBeCloseTo(2 * s.channels['saltreach-bay.angle'][5], 2);
   });
 
   it('reads .cff files with ASCII and BINARY data sections', async () => {

@@ -29,7 +29,7 @@ export type IngestSettings = {
   maxGapSeconds: number;
 };
 
-export function ingestSettings(env: NodeJS.ProcessEnv = process.env): IngestSettings {
+export function ingestSettings(env: Record<string, string | undefined> = process.env): IngestSettings {
   const parsed = schema.safeParse(env);
   if (!parsed.success) {
     const msg = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');

@@ -44,7 +44,7 @@ import { downsampleMinMax } from '../ingest/downsample';
 import { DuplicateRecordingError, FileRefusedError, MappingError, UnmappedColumnsError } from '../ingest/errors';
 import type { UploadedFile } from '../ingest/open';
 import { ingestSettings, type IngestSettings } from '../ingest/settings';
-import { removeSpooled, spoolStorage } from '../ingest/spool';
+import { removeSpooled, spoolStorage, sweepSpool } from '../ingest/spool';
 import { prepareUpload, storeUpload } from '../ingest/store';
 import { route, type RouteDef } from './registry';
 
@@ -91,9 +91,20 @@ function mib(bytes: number): string {
   return `${Number((bytes / (1 << 20)).toFixed(1))} MiB`;
 }
 
+/** Spool files older than this are left-overs of a crash (or of a job queued far too long). */
+const SPOOL_MAX_AGE_MS = 24 * 3600 * 1000;
+let lastSweep = 0;
+
 /** Runs multer on the request: every `file` part is spooled (server-chosen name, sha256, size). */
-async function receiveUpload(req: Request, res: Response): Promise<UploadedFile[]> {
+async function receiveUpload(req: Request, res: Response, deps: Deps): Promise<UploadedFile[]> {
   const s = settings();
+  if (Date.now() - lastSweep > 3600 * 1000) {
+    lastSweep = Date.now();
+    void sweepSpool(s.spoolDir, SPOOL_MAX_AGE_MS).then(
+      (n) => n > 0 && deps.log.info(`removed ${n} stale spool file(s) from ${s.spoolDir}`),
+      () => undefined,
+    );
+  }
   if (!req.is('multipart/form-data')) {
     throw new ValidationError(`Send the recording as multipart/form-data with the file(s) in the field "${UPLOAD_FILE_FIELD}"`, [
       { path: UPLOAD_FILE_FIELD, message: 'Required' },
@@ -118,7 +129,8 @@ async function receiveUpload(req: Request, res: Response): Promise<UploadedFile[
     throw new ValidationError(`The multipart body is malformed: ${(err as Error).message}`, [{ path: '', message: 'Malformed multipart body' }]);
   });
   const parts = (req.files as (Express.Multer.File & { sha256: string })[] | undefined) ?? [];
-  return parts.map((f) => ({ originalName: f.originalname, path: f.path, size: f.size, sha256: f.sha256 }));
+  // The client's name is only shown (messages, the list); a silly length is cut, never used as a path.
+  return parts.map((f) => ({ originalName: f.originalname.slice(0, 255) || 'upload', path: f.path, size: f.size, sha256: f.sha256 }));
 }
 
 // ---------------------------------------------------------------- answers
@@ -197,7 +209,7 @@ export function recordingRoutes(): RouteDef[] {
     })),
 
     route('recordings.upload', async ({ req, res, deps, person, ip, setStatus }) => {
-      const files = await receiveUpload(req, res);
+      const files = await receiveUpload(req, res, deps);
       let handedToJob = false;
       try {
         const fields = uploadFieldsSchema.safeParse(req.body ?? {});

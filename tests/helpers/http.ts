@@ -65,6 +65,11 @@ export function createClient(baseUrl: string): Client {
     if (payload !== undefined) headers['Content-Type'] ??= 'application/json';
     const res = await fetch(`${baseUrl}${path}`, { method, headers, body: payload, redirect: 'manual' });
     remember(res.headers);
+    if ((res.headers.get('content-type') ?? '').startsWith('text/event-stream')) {
+      // An endless stream (Server-Sent Events): the status and headers are the answer.
+      await res.body?.cancel();
+      return { status: res.status, body: null as T, headers: res.headers };
+    }
     const text = await res.text();
     let parsed: unknown = text;
     if ((res.headers.get('content-type') ?? '').includes('application/json') && text) parsed = JSON.parse(text);

@@ -144,6 +144,30 @@ describe('good uploads within the request', () => {
     expect(list.body.recordings.some((x: { id: number }) => x.id === rec.id)).toBe(true);
   });
 
+  it('keeps a long gap as missing samples, storing no chunk for a stretch with no data', async () => {
+    const s = series(9000);
+    // Frames 3500..7300 missing: chunk 1 (frames 3600..7199) holds nothing and is not stored.
+    const lines = csvText(s).trimEnd().split('\n');
+    const kept = lines.filter((_, i) => i === 0 || i - 1 < 3500 || i - 1 > 7300);
+    const r = await upload(engineer, [{ name: 'gap.csv', content: kept.join('\n') }]);
+    expect(r.status, JSON.stringify(r.body)).toBe(201);
+    const id = r.body.recording.id;
+    expect(r.body.recording).toMatchObject({ sampleCount: 9000, quality: { rows: 9000 - 3801, gaps: 1, missingFrames: 3801 } });
+    const chunks = await stack.pool.query('select chunk_index from sample_chunks where recording_id = $1 order by 1', [id]);
+    expect(chunks.rows.map((x) => x.chunk_index)).toEqual([0, 0, 0, 2, 2, 2]);
+    const part = await readRecordingSamples(db, { recordingId: id, channels: ['moorgate.freq'], from: s.start + 3490 / 30, to: s.start + 7310 / 30 });
+    const v = part.channels[0].values;
+    expect(v.length).toBe(7310 - 3490 + 1);
+    expect(part.startTime).toBeCloseTo(s.start + 3490 / 30, 6);
+    for (let f = 3490; f <= 7310; f++) {
+      const want = f >= 3500 && f <= 7300 ? NaN : s.channels['moorgate.freq'][f];
+      if (Number.isNaN(want)) expect(v[f - 3490], `frame ${f}`).toBeNaN();
+      else expect(v[f - 3490], `frame ${f}`).toBe(want);
+    }
+    const q = r.body.recording.channels[0].quality;
+    expect(q).toMatchObject({ samples: 9000, dropouts: 3801, gaps: 1, longestGap: 3801 });
+  });
+
   it('answers min/max buckets for plotting, over a time range', async () => {
     const s = series(900);
     s.channels['moorgate.angle'][450] = 80; // a spike that must survive decimation

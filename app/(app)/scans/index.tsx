@@ -1,0 +1,5 @@
+import { AnalysesScreen } from '@/components/scans/analyses-screen';
+
+export default function ScansRoute() {
+  return <AnalysesScreen kind="scan" />;
+}
