@@ -18,6 +18,12 @@ export function useMeQuery(opts: { enabled?: boolean } = {}) {
     queryKey: authKeys.me(),
     enabled: opts.enabled ?? true,
     queryFn: async () => {
+      // Ask the public CSRF endpoint first, so that a signed-out visit makes no failing request.
+      const probe = await callEndpoint('auth.csrf');
+      if (!probe.signedIn) {
+        setCsrfToken(probe.csrfToken);
+        throw new ApiError('UNAUTHENTICATED', 'Sign in to continue.', 401);
+      }
       const me = await callEndpoint('auth.me');
       setCsrfToken(me.csrfToken);
       return me;

@@ -8,7 +8,11 @@ export type AmbientMethod = 'yule-walker' | 'acf-matrix-pencil';
 export interface ForcedDetectionOptions {
   /** Run the test at all. Default true. */
   enabled: boolean;
-  /** Only peaks whose apparent damping is below this, percent, can be forced. Default 1.5. */
+  /**
+   * An AR pole damped less than this, percent, is tested and can be marked forced (a sinusoid fitted
+   * by an AR model looks undamped); a line found by the periodogram search needs no such check.
+   * Default 1.5.
+   */
   maxDampingPercent: number;
   /**
    * Minimum phase coherence of the peak across the window's spectral segments, 0…1: the
@@ -28,7 +32,10 @@ export interface AmbientOptions {
   windowSeconds: number;
   /** Window step of scanAmbient, s. Default 60. */
   stepSeconds: number;
-  /** Band of reported modes, Hz [low, high]; the data are high-passed at `low`. Default [0.1, 2.0]. */
+  /**
+   * Band of reported modes, Hz [low, high]. The decimation keeps [0, high] free of aliases; offsets
+   * and drifts slower than low/20 are removed. Default [0.1, 2.0].
+   */
   bandHz: [number, number];
   /**
    * Rate after anti-alias decimation, samples/s; must divide the record rate by a whole number and
@@ -37,10 +44,10 @@ export interface AmbientOptions {
    */
   analysisRate: number | null;
   /**
-   * 'yule-walker' (default): one AR polynomial fitted to the pooled normalised autocorrelations of
-   * all channels by Levinson–Durbin; fast and, on simulated Tarrow data, the less biased of the two.
-   * 'acf-matrix-pencil': matrix pencil on the pooled autocorrelation (lags 1 … acfLagSeconds),
-   * 3–10× slower.
+   * 'yule-walker' (default): an AR polynomial fitted to pooled normalised autocorrelations by
+   * Levinson–Durbin; fast, and on simulated Tarrow data the more accurate of the two.
+   * 'acf-matrix-pencil': matrix pencil on the pooled autocorrelation (lags 1 … acfLagSeconds;
+   * SVD per window and per jackknife replicate, so about 10× slower).
    */
   method: AmbientMethod;
   /** AR order (yule-walker) or signal-subspace order (acf-matrix-pencil). Default 30. */

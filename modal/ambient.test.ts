@@ -269,6 +269,16 @@ describe('scanAmbient', () => {
     }
   });
 
+  it('after a long gap, skips the windows within ten DC-blocker time constants of its end (~5 min)', () => {
+    const rec = synth(405, { seconds: 1900 });
+    rec.channels[5].values.fill(NaN, 30 * 10, 30 * 15);
+    const ws = scanAmbient(rec, { ...OPTS, stepSeconds: 60 });
+    expect(ws.map((w) => w.skipped)).toEqual([true, true, true, true, true, true, false, false, false, false, false, false]);
+    expect(ws[0].reason).toBe("channel 'b2.x' has a gap of 5 s at +10 s (longer than maxGapSeconds 1 s) in or next to this window");
+    expect(ws[0].quality['b2.x']).toMatchObject({ dropouts: 150, gaps: 1, longestGap: 150 });
+    expect(nearest(ws[6], 0.3)).toBeDefined();
+  });
+
   it('skips a window missing too many samples', () => {
     const rec = synth(403, { seconds: 1200 });
     const v = rec.channels[0].values;

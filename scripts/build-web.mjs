@@ -7,7 +7,7 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import { log, repoRoot } from './lib/services.mjs';
 
-const SOURCES = ['app', 'components', 'hooks', 'shared', 'fixtures/tarrow-network.ts', 'modal', 'app.json', 'package-lock.json', 'tsconfig.json'];
+const SOURCES = ['app', 'components', 'hooks', 'shared', 'fixtures/tarrow-network.ts', 'modal', 'app.json', 'metro.config.js', 'scripts/metro', 'package-lock.json', 'tsconfig.json'];
 
 function walk(p, out) {
   if (!fs.existsSync(p)) return;

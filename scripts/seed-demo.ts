@@ -6,7 +6,9 @@
 //     the simulator's daily shape, scanned with a 5-minute step;
 //   - two ring-down events (a corridor line trip, a generator loss), each fitted by both methods;
 //   - a few hours of ambient data at rising transfer levels up to one where the north–south mode
-//     is under 3 % damping, so a demo alert opens (and stays open: it is the newest data).
+//     is under 3 % damping, so a demo alert opens (and stays open: it is the newest data); one of
+//     them carries a 0.70 Hz forced oscillation (a 'forced' alert on the east–west track that
+//     clears with the next recording).
 // Everything ends at about the time of seeding. Idempotent: with any recording stored it does
 // nothing; a session advisory lock keeps two starts from seeding twice. The demo engineer,
 // operator and administrator follow every track (alert e-mails go to the Outbox).
@@ -38,6 +40,8 @@ export interface DemoAmbient {
   seed: number;
   rate?: number;
   channels?: string[];
+  /** A sustained forced oscillation injected during the recording. */
+  forced?: { frequencyHz: number; amplitude: number; site: string };
 }
 export interface DemoDay {
   start: number;
@@ -86,7 +90,13 @@ export function demoPlan(now: number): DemoPlan {
       // corridor flows show the swing without the drift of the angles and frequencies
       { start: blockStart - 45 * 60, event: 'generator-loss', transferMw: 1500, seed: 202, seconds: 40, fitSeconds: 20, fitChannels: ['moorgate.mw', 'eastfell-ridge.mw'] },
     ],
-    ambient: DEMO_LEVELS_MW.map((mw, i) => ({ start: blockStart + i * blockMinutes * 60, transferMw: mw, minutes: blockMinutes, seed: 300 + i })),
+    ambient: DEMO_LEVELS_MW.map((mw, i) => ({
+      start: blockStart + i * blockMinutes * 60,
+      transferMw: mw,
+      minutes: blockMinutes,
+      seed: 300 + i,
+      ...(mw === 1800 ? { forced: { frequencyHz: 0.7, amplitude: 8, site: 'windlow' } } : {}),
+    })),
   };
 }
 
@@ -227,7 +237,14 @@ export async function seedDemoPlan(
       ctx.log.info(`demo: stored a ${r.event} ring-down at ${r.transferMw} MW`);
     }
     for (const a of plan.ambient) {
-      const rec = simulateAmbient(buildTarrowModel(a.transferMw), { minutes: a.minutes, seed: a.seed, startTime: a.start, rate: a.rate, channels: a.channels });
+      const rec = simulateAmbient(buildTarrowModel(a.transferMw), {
+        minutes: a.minutes,
+        seed: a.seed,
+        startTime: a.start,
+        rate: a.rate,
+        channels: a.channels,
+        ...(a.forced ? { forced: a.forced } : {}),
+      });
       const file = path.join(dir, `ambient-${a.seed}.csv`);
       writeRecordCsv(file, rec);
       await keep(await storeDemoFile(ctx.db, { file, fileName: `tarrow-ambient-${a.transferMw}mw-${stamp(a.start)}.csv`, uploadedBy, scan: {} }));

@@ -12,7 +12,7 @@ import { useBreakpoint } from '@/hooks/use-breakpoint';
 import { useLiveEvents } from '@/hooks/use-events';
 import { BandChip } from '../band-chip';
 import { Button } from '../button';
-import { DampingChart } from '../charts/damping-chart';
+import { DampingChart, medianSpacing } from '../charts/damping-chart';
 import { LineChart } from '../charts/line-chart';
 import { describeShape, groupColorMap, PolarChart } from '../charts/polar-chart';
 import { useChartZoom } from '../charts/zoom';
@@ -221,6 +221,7 @@ function AcknowledgePanel({ d }: { d: AlertDetailResponse }) {
 
 function TracePanel({ d, now }: { d: AlertDetailResponse; now: number }) {
   const a = d.alert;
+  const bp = useBreakpoint();
   const from = Date.parse(d.traceFrom);
   const to = Date.parse(d.traceTo);
   const full = useMemo(() => [from, to] as const, [from, to]);
@@ -237,14 +238,14 @@ function TracePanel({ d, now }: { d: AlertDetailResponse; now: number }) {
         <EmptyState title="No estimates around this alert" />
       ) : (
         <View style={styles.stack}>
-          <DampingChart poorBelow={a.poorBelow} lowBelow={a.lowBelow} points={points} spans={spans} markers={markers} xExtent={full} zoom={zoom} testID="alert-damping-chart" />
+          <DampingChart poorBelow={a.poorBelow} lowBelow={a.lowBelow} points={points} spans={spans} markers={markers} xExtent={full} zoom={zoom} height={bp.isWide ? 280 : 240} testID="alert-damping-chart" />
           {freq.length > 1 ? (
             <LineChart
               label={`Frequency of the mode around the alert: ${freq.length} estimates, latest ${formatHz(lastF.y)}.`}
               height={150}
               x={{ kind: 'time' }}
               y={{ title: 'Frequency, Hz' }}
-              series={[{ kind: 'line', id: 'f', label: 'Frequency', color: colors.ink, width: 1.5, points: freq }]}
+              series={[{ kind: 'line', id: 'f', label: 'Frequency', color: colors.ink, width: 1.5, points: freq, maxGap: medianSpacing(freq.map((p) => p.x)) * 4 }]}
               spans={spans.map((s) => ({ ...s, label: undefined }))}
               xExtent={full}
               zoom={zoom}

@@ -1,6 +1,7 @@
 // The mode shape as numbers: each PMU channel's site, area, relative magnitude and angle.
 import { StyleSheet, View } from 'react-native';
 import type { ShapeEntry } from '@/shared/api/estimates';
+import { tickNumber } from '../charts/ticks';
 import { Num, Text } from '../text';
 import { colors, space } from '../theme';
 
@@ -27,7 +28,7 @@ export function ShapeTable({ entries, colorsBy }: { entries: ShapeEntry[]; color
                 {e.siteName}
               </Text>
               <Text variant="caption" muted numberOfLines={1}>
-                {e.area} · {e.channel}
+                {e.area} · {e.channel.startsWith(`${e.site}.`) ? e.channel.slice(e.site.length + 1) : e.channel}
               </Text>
             </View>
           </View>
@@ -35,7 +36,7 @@ export function ShapeTable({ entries, colorsBy }: { entries: ShapeEntry[]; color
             {e.magnitude.toFixed(2)}
           </Num>
           <Num role="cell" variant="small" style={styles.num}>
-            {`${Math.round(e.angleDeg)}°`}
+            {`${tickNumber(Math.round(e.angleDeg), 0)}°`}
           </Num>
         </View>
       ))}

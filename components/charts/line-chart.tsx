@@ -164,14 +164,14 @@ export function LineChart({
               </G>
               <YAxis plot={plot} domain={yDomain} title={y.title} />
               <G clipPath={`url(#${clipId})`}>
-                {series.map((s) => (
-                  <SeriesShape key={s.id} s={s} sx={sx} sy={sy} plot={plot} domain={domain} />
-                ))}
+                {series.map((s) => (s.kind === 'points' ? null : <SeriesShape key={s.id} s={s} sx={sx} sy={sy} plot={plot} domain={domain} />))}
                 {markers.map((mk, i) => {
                   const px = sx(mk.x);
                   return <Line key={`m${i}`} x1={px} x2={px} y1={plot.y} y2={plot.y + plot.h} stroke={mk.color} strokeWidth={1.5} strokeDasharray={mk.dash ?? '2 3'} />;
                 })}
               </G>
+              {/* Marks are filtered to the domain, so they may stand a few px past the plot edge unclipped. */}
+              {series.map((s) => (s.kind === 'points' ? <SeriesShape key={s.id} s={s} sx={sx} sy={sy} plot={plot} domain={domain} /> : null))}
               {refLines.map((r, i) => (
                 <RefLine key={`r${i}`} plot={plot} scale={sy} spec={r} labelBelow={refLineLabelBelow(refLines, i, sy)} />
               ))}
@@ -257,7 +257,9 @@ function SeriesShape({ s, sx, sy, plot, domain }: { s: ChartSeries; sx: Scale; s
     return <Path d={d} fill={s.color} opacity={s.opacity ?? 0.18} stroke="none" />;
   }
   const visible = s.points.filter((p) => p.x >= domain[0] && p.x <= domain[1] && Number.isFinite(p.y));
-  const size = s.size ?? (visible.length > 150 ? 3 : 4.5);
+  // Smaller marks when they crowd: about one mark per 6 px of plot width.
+  const crowded = visible.length > plot.w / 6;
+  const size = s.size ?? (crowded ? 2.6 : visible.length > plot.w / 14 ? 3.4 : 4.2);
   return (
     <G>
       {visible.map((p, i) => (

@@ -61,23 +61,40 @@ export function PolarChart({ entries, label, maxSize = 360, groupColors, testID 
   const rad = (deg: number) => (deg * Math.PI) / 180;
   const at = (r: number, deg: number) => ({ x: c + r * Math.cos(rad(deg)), y: c - r * Math.sin(rad(deg)) });
 
-  // Labels, largest first, skipping any that would sit on one already placed.
-  const placed: Box[] = [];
-  const labels: { id: string; x: number; y: number; text: string; color: string; anchor: 'start' | 'middle' | 'end' }[] = [];
+  // Labels, largest first. Try beyond the tip, then along the arrow inside the circle; an arrow
+  // whose label would land on one already placed (same direction, like size) adds "+1" to it.
+  const placed: (Box & { deg: number; mag: number; idx: number })[] = [];
+  const labels: { id: string; x: number; y: number; text: string; more: number; color: string; anchor: 'start' | 'middle' | 'end' }[] = [];
   const sorted = [...entries].sort((a, b) => b.magnitude - a.magnitude);
   for (const e of sorted) {
-    const w = e.label.length * 6.6 + 4;
-    for (const extra of [12, 24]) {
-      const p = at(R * Math.min(1, e.magnitude) + extra, e.angleDeg);
-      const cos = Math.cos(rad(e.angleDeg));
-      const anchor: 'start' | 'middle' | 'end' = cos > 0.3 ? 'start' : cos < -0.3 ? 'end' : 'middle';
-      const x0 = anchor === 'start' ? p.x : anchor === 'end' ? p.x - w : p.x - w / 2;
-      const box = { x0, y0: p.y - 9, x1: x0 + w, y1: p.y + 5 };
+    const w = e.label.length * 6.6 + 22;
+    const mag = Math.min(1, Math.max(0, e.magnitude));
+    const cos = Math.cos(rad(e.angleDeg));
+    const sin = Math.sin(rad(e.angleDeg));
+    const tip = at(R * mag, e.angleDeg);
+    const candidates: { x: number; y: number; anchor: 'start' | 'middle' | 'end' }[] = [];
+    for (const extra of [10, 22]) {
+      const p = at(R * mag + extra, e.angleDeg);
+      candidates.push({ x: p.x, y: p.y + 4, anchor: cos > 0.3 ? 'start' : cos < -0.3 ? 'end' : 'middle' });
+    }
+    // Inside, just above / below the arrow, ending at the tip.
+    const inAnchor: 'start' | 'end' = cos >= 0 ? 'end' : 'start';
+    candidates.push({ x: tip.x - (cos >= 0 ? 10 : -10), y: tip.y - (sin >= 0 ? -14 : 8), anchor: inAnchor });
+    candidates.push({ x: tip.x - (cos >= 0 ? 10 : -10), y: tip.y + (sin >= 0 ? -8 : 14), anchor: inAnchor });
+    let done = false;
+    for (const cnd of candidates) {
+      const x0 = cnd.anchor === 'start' ? cnd.x : cnd.anchor === 'end' ? cnd.x - w : cnd.x - w / 2;
+      const box = { x0, y0: cnd.y - 12, x1: x0 + w, y1: cnd.y + 3 };
       if (box.x0 < 0 || box.x1 > size || box.y0 < 0 || box.y1 > size) continue;
       if (placed.some((b) => overlaps(b, box))) continue;
-      placed.push(box);
-      labels.push({ id: e.id, x: p.x, y: p.y + 4, text: e.label, color: colorsBy[e.group ?? ''] ?? colors.ink, anchor });
+      placed.push({ ...box, deg: e.angleDeg, mag, idx: labels.length });
+      labels.push({ id: e.id, x: cnd.x, y: cnd.y, text: e.label, more: 0, color: colorsBy[e.group ?? ''] ?? colors.ink, anchor: cnd.anchor });
+      done = true;
       break;
+    }
+    if (!done) {
+      const twin = placed.find((b) => Math.abs(((b.deg - e.angleDeg + 540) % 360) - 180) < 15 && Math.abs(b.mag - mag) < 0.25);
+      if (twin) labels[twin.idx].more += 1;
     }
   }
   const groups = Object.entries(colorsBy).filter(([g]) => g !== '');
@@ -122,7 +139,7 @@ export function PolarChart({ entries, label, maxSize = 360, groupColors, testID 
             <Circle cx={c} cy={c} r={2.5} fill={colors.ink} />
             {labels.map((l) => (
               <HaloText key={l.id} x={l.x} y={l.y} color={l.color} anchor={l.anchor} mono size={10.5}>
-                {l.text}
+                {l.more > 0 ? `${l.text} +${l.more}` : l.text}
               </HaloText>
             ))}
           </Svg>

@@ -51,7 +51,11 @@ export interface ScatterChartProps {
   points: ScatterPoint[];
   pointsLabel?: string;
   pointColor?: string;
-  fit?: { points: FitLinePoint[]; color?: string; label?: string; bandLabel?: string };
+  /**
+   * The fitted line with its band over the data's range; with `intercept` and `slope` the line is
+   * continued, dashed, across the rest of the chart (to reach projections beyond the data).
+   */
+  fit?: { points: FitLinePoint[]; color?: string; label?: string; bandLabel?: string; intercept?: number; slope?: number };
   refLines?: RefLineSpec[];
   projections?: Projection[];
   testID?: string;
@@ -100,6 +104,12 @@ export function ScatterChart({ label, height = 280, x, y, points, pointsLabel = 
                 {points.map((p, i) => (
                   <MarkerShape key={`p${i}`} kind={p.shape ?? 'circle'} x={sx(p.x)} y={sy(p.y)} size={size} color={p.color ?? pointColor} />
                 ))}
+                {fit && fit.intercept != null && fit.slope != null && fit.points.length > 1 ? (
+                  <>
+                    <Line x1={sx(xDomain[0])} y1={sy(fit.intercept + fit.slope * xDomain[0])} x2={sx(fit.points[0].x)} y2={sy(fit.intercept + fit.slope * fit.points[0].x)} stroke={fitColor} strokeWidth={1.5} strokeDasharray="5 4" />
+                    <Line x1={sx(fit.points[fit.points.length - 1].x)} y1={sy(fit.intercept + fit.slope * fit.points[fit.points.length - 1].x)} x2={sx(xDomain[1])} y2={sy(fit.intercept + fit.slope * xDomain[1])} stroke={fitColor} strokeWidth={1.5} strokeDasharray="5 4" />
+                  </>
+                ) : null}
                 {linePath ? <Path d={linePath} fill="none" stroke={fitColor} strokeWidth={2.25} /> : null}
                 {projections.map((pr, i) => {
                   if (pr.x == null) return null;

@@ -57,11 +57,13 @@ export interface FitFormProps {
   title?: string;
   submitTitle?: string;
   intro?: string;
+  /** A line above the fields (e.g. where a suggested interval came from). */
+  notice?: string | null;
   testID?: string;
 }
 
 /** A ring-down fit over an interval: Prony and the matrix pencil together, compared side by side. */
-export function FitFormPanel({ recording, interval, onInterval, initial, title = 'Ring-down fit', submitTitle = 'Fit this interval', intro, testID = 'fit-form' }: FitFormProps) {
+export function FitFormPanel({ recording, interval, onInterval, initial, title = 'Ring-down fit', submitTitle = 'Fit this interval', intro, notice, testID = 'fit-form' }: FitFormProps) {
   const start = epochOf(recording.startTime);
   const end = epochOf(recording.endTime);
   const rate = recording.rate ?? 30;
@@ -156,6 +158,7 @@ export function FitFormPanel({ recording, interval, onInterval, initial, title =
         {intro ??
           'Prony and the matrix pencil fitted to the same interval, 2–600 s long, starting just after the event. Drag across the signal to select it, or type it here.'}
       </Text>
+      {notice ? <Notice kind="info">{notice}</Notice> : null}
       {formError ? <Notice kind="error">{formError}</Notice> : null}
       <FieldRow>
         <FormNumberField control={form.control} name="fromSeconds" label="From" unit="s" hint={fromHint} />

@@ -212,37 +212,36 @@ function FitView({ fit, recording, recordingError }: { fit: FitDetailResponse; r
     ) : null;
 
   const mayRun = can('runAnalysis');
-  const refit =
+  const rawSignal =
     recording && recording.status === 'ready' && rawChannel ? (
-      <View style={styles.stack} testID="refit">
-        <SignalPanel
-          title="Raw signal"
-          recording={recording}
-          channel={rawChannel}
-          onChannel={setRawChannel}
-          interval={interval}
-          onBrush={mayRun ? (x, y) => setInterval2([x, y]) : undefined}
-          focus={[from - Math.max(10, to - from), to + Math.max(10, to - from)]}
-        />
-        {mayRun ? (
-          <FitFormPanel
-            recording={recording}
-            interval={interval}
-            onInterval={(x, y) => setInterval2([x, y])}
-            initial={{
-              channels: fit.channels,
-              order: a.settings.order === 'auto' || typeof a.settings.order === 'number' ? (a.settings.order as 'auto' | number) : 'auto',
-              bandHz: Array.isArray(a.settings.bandHz) ? (a.settings.bandHz as [number, number]) : undefined,
-            }}
-            title="Fit another interval"
-            submitTitle="Fit again"
-            intro="Drag across the raw signal to choose a new interval, or type it. The new fit opens when it is queued."
-            testID="refit-form"
-          />
-        ) : null}
-      </View>
+      <SignalPanel
+        title="Raw signal"
+        recording={recording}
+        channel={rawChannel}
+        onChannel={setRawChannel}
+        interval={interval}
+        onBrush={mayRun ? (x, y) => setInterval2([x, y]) : undefined}
+        focus={[from - Math.max(10, to - from), to + Math.max(10, to - from)]}
+      />
     ) : recordingError ? (
       <ErrorState title="Could not load the recording" message={recordingError} />
+    ) : null;
+  const refitForm =
+    recording && recording.status === 'ready' && mayRun ? (
+      <FitFormPanel
+        recording={recording}
+        interval={interval}
+        onInterval={(x, y) => setInterval2([x, y])}
+        initial={{
+          channels: fit.channels,
+          order: a.settings.order === 'auto' || typeof a.settings.order === 'number' ? (a.settings.order as 'auto' | number) : 'auto',
+          bandHz: Array.isArray(a.settings.bandHz) ? (a.settings.bandHz as [number, number]) : undefined,
+        }}
+        title="Fit another interval"
+        submitTitle="Fit again"
+        intro="Drag across the raw signal to choose a new interval, or type it. The new fit opens as soon as it is queued."
+        testID="refit-form"
+      />
     ) : null;
 
   const actions = (
@@ -258,16 +257,17 @@ function FitView({ fit, recording, recordingError }: { fit: FitDetailResponse; r
         <View style={styles.stack}>
           {status}
           <Columns max={2} weights={[3, 2]}>
-            <View style={styles.stack}>
-              {view}
-              {refit}
-            </View>
+            {view}
             <View style={styles.stack}>
               {switches}
               {shape}
             </View>
           </Columns>
           {table}
+          <Columns max={2} weights={[3, 2]}>
+            {rawSignal}
+            {refitForm}
+          </Columns>
         </View>
       ) : (
         <View style={styles.stack}>
@@ -276,7 +276,8 @@ function FitView({ fit, recording, recordingError }: { fit: FitDetailResponse; r
           {switches}
           {table}
           {shape}
-          {refit}
+          {rawSignal}
+          {refitForm}
         </View>
       )}
     </Screen>
@@ -287,7 +288,7 @@ const styles = StyleSheet.create({
   stack: { gap: space.lg },
   actions: { flexDirection: 'row', alignItems: 'center', flexWrap: 'wrap', gap: space.md },
   controls: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'flex-start', columnGap: space.lg },
-  controlsCompact: { flexDirection: 'column' },
+  controlsCompact: { flexDirection: 'column', alignItems: 'stretch' },
   channelPick: { flexGrow: 1, minWidth: 200 },
   note: { marginTop: space.xs, marginBottom: space.sm },
   failed: { padding: space.sm, borderRadius: radii.sm, backgroundColor: colors.dangerSoft, gap: space.xxs },

@@ -93,7 +93,7 @@ export function NetworkScreen({ kind: kindKey, editing }: NetworkScreenProps) {
           columns={columnsOf(kind.key, m)}
           rowKey={(r) => r.id}
           // A table needs room: beside an open form only narrow tables fit, else rows become cards.
-          mode={bp.isWide && (!form || (bp.name === 'xwide' && columnsOf(kind.key, m).length <= 4)) ? 'table' : 'cards'}
+          mode={bp.isWide && (!form || (bp.name === 'xwide' && columnsOf(kind.key, m).length <= 5)) ? 'table' : 'cards'}
           action={
             mayEdit
               ? {

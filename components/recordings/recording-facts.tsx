@@ -8,9 +8,9 @@ import { FORMAT_WORD } from './recordings-table';
 import { StatusTag } from './status';
 import { epochOf, formatBytes, formatDuration, formatUtcTime, unitSymbol } from './units';
 
-function Fact({ label, value, mono = true }: { label: string; value: string; mono?: boolean }) {
+function Fact({ label, value, mono = true, wide }: { label: string; value: string; mono?: boolean; wide?: boolean }) {
   return (
-    <View style={styles.fact}>
+    <View style={[styles.fact, wide && styles.factWide]}>
       <Text variant="caption" muted>
         {label}
       </Text>
@@ -18,6 +18,8 @@ function Fact({ label, value, mono = true }: { label: string; value: string; mon
     </View>
   );
 }
+
+const sameDay = (a: number, b: number) => new Date(a * 1000).toISOString().slice(0, 10) === new Date(b * 1000).toISOString().slice(0, 10);
 
 const pct = (n: number, of: number) => (of > 0 ? `${((100 * n) / of).toFixed(n === 0 ? 0 : 2)} %` : '—');
 
@@ -29,8 +31,8 @@ export function RecordingFacts({ recording: r }: { recording: RecordingDetail })
   return (
     <Panel title="Recording" label="Recording facts" aside={<StatusTag status={r.status} />} testID="recording-facts">
       <View style={styles.grid}>
-        <Fact label="Starts" value={Number.isFinite(start) ? formatUtcTime(start, true) : '—'} />
-        <Fact label="Ends" value={Number.isFinite(end) ? formatUtcTime(end, true) : '—'} />
+        <Fact label="Starts" value={Number.isFinite(start) ? formatUtcTime(start, true) : '—'} wide />
+        <Fact label="Ends" value={Number.isFinite(end) ? formatUtcTime(end, sameDay(start, end) ? false : true) : '—'} wide />
         <Fact label="Length" value={formatDuration(Number.isFinite(end - start) ? end - start : null)} />
         <Fact label="Reporting rate" value={r.rate ? formatRate(r.rate) : '—'} />
         <Fact label="Channels" value={r.channelCount != null ? String(r.channelCount) : '—'} />
@@ -111,6 +113,7 @@ export function ChannelsPanel({ recording }: { recording: RecordingDetail }) {
 const styles = StyleSheet.create({
   grid: { flexDirection: 'row', flexWrap: 'wrap', rowGap: space.sm },
   fact: { width: '50%', paddingRight: space.sm, gap: 1 },
+  factWide: { width: '100%' },
   quality: { marginTop: space.md, gap: space.xxs },
   error: { marginTop: space.md, padding: space.sm, backgroundColor: colors.dangerSoft, borderRadius: radii.sm, gap: space.xxs },
   checksum: { marginTop: space.md },

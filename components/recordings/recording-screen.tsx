@@ -64,6 +64,12 @@ export function RecordingScreen({ id: idParam }: { id: string | undefined }) {
     [interval, suggested, start, end],
   );
 
+  // The person's own choice replaces the suggestion (and its note).
+  const choose = (iv: [number, number]) => {
+    setFitInterval(iv);
+    if (suggested) setSuggested('');
+  };
+
   if (!Number.isFinite(id) || id <= 0) {
     return (
       <Screen title="Recording">
@@ -97,7 +103,7 @@ export function RecordingScreen({ id: idParam }: { id: string | undefined }) {
       channel={shown}
       onChannel={setChannel}
       interval={interval}
-      onBrush={mayRun ? (a, b) => setFitInterval([a, b]) : undefined}
+      onBrush={mayRun ? (a, b) => choose([a, b]) : undefined}
       onOverview={onOverview}
     />
   ) : null;
@@ -105,10 +111,7 @@ export function RecordingScreen({ id: idParam }: { id: string | undefined }) {
   const channels = rec.channels.length > 0 ? <ChannelsPanel recording={rec} /> : null;
   const fitForm =
     ready && mayRun ? (
-      <View>
-        {suggested ? <Notice kind="info">{suggested}</Notice> : null}
-        <FitFormPanel recording={rec} interval={interval} onInterval={(a, b) => setFitInterval([a, b])} />
-      </View>
+      <FitFormPanel recording={rec} interval={interval} onInterval={(a, b) => choose([a, b])} notice={suggested} />
     ) : null;
   const scanForm = ready && mayRun ? <ScanFormPanel recording={rec} /> : null;
   const analyses = (

@@ -21,7 +21,7 @@ export function RecordingsScreen() {
   useAnalysisEvents();
 
   const recordings = (
-    <Panel title="Recordings" label="Recordings list">
+    <Panel title="Uploaded recordings" label="Uploaded recordings">
       {list.isPending ? (
         <LoadingState label="Loading recordings…" />
       ) : list.error ? (

@@ -135,7 +135,7 @@ export function RecordingsTable({ recordings, mode, pageSize }: RecordingsTableP
                 </Text>
               </View>
               <View role="cell" style={[styles.cell, { flex: FLEX.start }]}>
-                <Num variant="small">{formatDateTime(r.startTime)}</Num>
+                <DateCell iso={r.startTime} />
               </View>
               <View role="cell" style={[styles.cell, { flex: FLEX.length }]}>
                 <Num variant="small">{formatDuration(span)}</Num>
@@ -147,7 +147,7 @@ export function RecordingsTable({ recordings, mode, pageSize }: RecordingsTableP
                 <StatusTag status={r.status} />
               </View>
               <View role="cell" style={[styles.cell, { flex: FLEX.uploaded }]}>
-                <Num variant="small">{formatDateTime(r.uploadedAt)}</Num>
+                <DateCell iso={r.uploadedAt} />
                 <Text variant="caption" muted numberOfLines={1}>
                   {r.uploadedBy?.displayName ?? '—'}
                 </Text>
@@ -161,7 +161,23 @@ export function RecordingsTable({ recordings, mode, pageSize }: RecordingsTableP
   );
 }
 
-const FLEX: Record<string, number> = { file: 2.4, start: 1.6, length: 1.1, channels: 0.9, status: 1.1, uploaded: 1.6 };
+const FLEX: Record<string, number> = { file: 2.4, start: 1.35, length: 1.3, channels: 1.1, status: 1.1, uploaded: 1.45 };
+
+/** Date over time of day (UTC), so a narrow column never breaks a timestamp in the middle. */
+function DateCell({ iso }: { iso: string | null }) {
+  const text = formatDateTime(iso);
+  const [date, ...rest] = text.split(' ');
+  return (
+    <View>
+      <Num variant="small">{date}</Num>
+      {rest.length ? (
+        <Num variant="caption" muted>
+          {rest.join(' ')}
+        </Num>
+      ) : null}
+    </View>
+  );
+}
 
 export const FORMAT_WORD: Record<RecordingSummary['format'], string> = {
   csv: 'CSV',

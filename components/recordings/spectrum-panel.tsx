@@ -9,6 +9,7 @@ import { GROUP_PALETTE, LineChart, type ShadedSpan } from '../charts';
 import { Panel } from '../layout';
 import { SelectField } from '../select-field';
 import { EmptyState, ErrorState, LoadingState } from '../state-views';
+import { formatHzRange } from '../format';
 import { Text } from '../text';
 import { colors, space } from '../theme';
 import { rawValues } from './samples';
@@ -96,13 +97,9 @@ export function SpectrumPanel({ recording, channel }: { recording: RecordingDeta
   }, [q.data, channel, ch?.kind]);
 
   const unit = ch ? unitSymbol(ch.unit) : '';
-  const spans: ShadedSpan[] = (tracks.data?.tracks ?? []).map((t, i) => ({
-    from: t.minHz,
-    to: t.maxHz,
-    color: GROUP_PALETTE[(i + 2) % GROUP_PALETTE.length],
-    label: t.name,
-    opacity: 0.08,
-  }));
+  const trackList = tracks.data?.tracks ?? [];
+  const trackColor = (i: number) => GROUP_PALETTE[(i + 2) % GROUP_PALETTE.length];
+  const spans: ShadedSpan[] = trackList.map((t, i) => ({ from: t.minHz, to: t.maxHz, color: trackColor(i), opacity: 0.1 }));
 
   return (
     <Panel title="Spectrum" label={`Spectrum of ${channel}`} testID="spectrum-panel">
@@ -139,8 +136,20 @@ export function SpectrumPanel({ recording, channel }: { recording: RecordingDeta
             legend={false}
             testID="spectrum-chart"
           />
+          {trackList.length ? (
+            <View style={styles.key} aria-hidden>
+              {trackList.map((t, i) => (
+                <View key={t.code} style={styles.keyItem}>
+                  <View style={[styles.swatch, { backgroundColor: trackColor(i) }]} />
+                  <Text variant="caption" muted>
+                    {`${t.name} ${formatHzRange(t.minHz, t.maxHz)}`}
+                  </Text>
+                </View>
+              ))}
+            </View>
+          ) : null}
           <Text variant="caption" muted style={styles.note}>
-            {`Welch: ${result.segments} segments of ${Math.round(1 / result.resolution)} s, ${result.resolution.toFixed(3)} Hz resolution, ${formatUtcTime(result.from)} – ${formatUtcTime(result.to)}. Shaded: the mode tracks' frequency ranges.`}
+            {`Welch: ${result.segments} segments of ${Math.round(1 / result.resolution)} s, ${result.resolution.toFixed(3)} Hz resolution, ${formatUtcTime(result.from)} – ${formatUtcTime(result.to)}. Shaded: the frequency ranges of the mode tracks.`}
           </Text>
         </View>
       )}
@@ -150,4 +159,7 @@ export function SpectrumPanel({ recording, channel }: { recording: RecordingDeta
 
 const styles = StyleSheet.create({
   note: { marginTop: space.xs },
+  key: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.md, rowGap: space.xxs, marginTop: space.xs },
+  keyItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
+  swatch: { width: 12, height: 10, borderRadius: 2, opacity: 0.45 },
 });

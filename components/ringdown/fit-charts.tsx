@@ -39,7 +39,10 @@ export function RingdownCharts({ series, stepSeconds, enabled, unit, quantity, m
   const inputRms = rms(series.input);
   const residRms = rms(resid);
   const explained = inputRms > 0 ? 1 - (residRms * residRms) / (inputRms * inputRms) : Number.NaN;
-  const reconLabel = on === enabled.length ? `${methodTitle} reconstruction, all ${on} modes` : `${methodTitle} reconstruction, ${on} of ${enabled.length} modes`;
+  const reconLabel =
+    on === enabled.length
+      ? `${methodTitle} reconstruction, ${on === 1 ? 'its one mode' : `all ${on} modes`}`
+      : `${methodTitle} reconstruction, ${on} of ${enabled.length} modes`;
 
   return (
     <View style={styles.stack}>

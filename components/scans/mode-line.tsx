@@ -21,7 +21,7 @@ export function ModeLine({ mode, trackName }: { mode: ModeEstimate; trackName: s
   return (
     <View style={styles.row} testID={`mode-${mode.id}`}>
       <Text variant="small" bold style={styles.track} numberOfLines={1}>
-        {trackName ?? 'outside the tracks'}
+        {trackName ?? 'no track'}
       </Text>
       <Num variant="small" style={styles.hz}>
         {formatHz(mode.frequencyHz)}
@@ -36,7 +36,7 @@ export function ModeLine({ mode, trackName }: { mode: ModeEstimate; trackName: s
 
 const styles = StyleSheet.create({
   row: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', columnGap: space.md, rowGap: space.xxs, paddingVertical: 3 },
-  track: { width: 120 },
+  track: { width: 104 },
   hz: { width: 82 },
-  damping: { width: 92 },
+  damping: { width: 104 },
 });

@@ -164,6 +164,15 @@ function ScanStatus({ data }: { data: ScanResultsResponse }) {
   );
 }
 
+/** The points' time span with half a step of room at each end, so the first and last marks are not cut. */
+function padded(xs: number[]): [number, number] | undefined {
+  if (xs.length === 0) return undefined;
+  const lo = Math.min(...xs);
+  const hi = Math.max(...xs);
+  const step = xs.length > 1 ? (hi - lo) / (xs.length - 1) : 60_000;
+  return [lo - step / 2, hi + step / 2];
+}
+
 function TrackDamping({ group }: { group: TrackGroup }) {
   const t = group.track;
   const th = t ? { poorBelow: t.poorBelow, lowBelow: t.lowBelow } : DEFAULT_THRESHOLDS;
@@ -189,7 +198,7 @@ function TrackDamping({ group }: { group: TrackGroup }) {
       <Text variant="small" muted style={styles.under}>
         {`${t ? `${formatHzRange(t.minHz, t.maxHz)} · ` : ''}${group.modes.length} estimates${lowest ? ` · lowest ${formatDamping(lowest.dampingPercent, lowest.dampingLo, lowest.dampingHi)} at ${formatUtcTime(Date.parse(lowest.at) / 1000)}` : ''}`}
       </Text>
-      <DampingChart poorBelow={th.poorBelow} lowBelow={th.lowBelow} points={points} height={200} testID={`damping-chart-${group.code ?? 'other'}`} />
+      <DampingChart poorBelow={th.poorBelow} lowBelow={th.lowBelow} points={points} xExtent={padded(points.map((p) => p.x))} height={200} testID={`damping-chart-${group.code ?? 'other'}`} />
     </Panel>
   );
 }
@@ -207,8 +216,8 @@ function FrequencyPanel({ data, tracks }: { data: ScanResultsResponse; tracks: T
         height={200}
         x={{ kind: 'time' }}
         y={{ title: 'Frequency, Hz', include: [0] }}
+        xExtent={padded(series[0].points.map((p) => p.x))}
         series={series}
-        refLines={tracks.map((t) => ({ y: (t.minHz + t.maxHz) / 2, label: t.name, color: colors.inkMuted, dash: '1 5' }))}
         legend={false}
       />
       <BandKey />

@@ -19,10 +19,10 @@ export interface Section {
 
 export const SECTIONS: readonly Section[] = [
   { key: 'watch', title: 'Watch', href: '/', permission: 'view', built: true },
-  { key: 'alerts', title: 'Alerts', href: '/alerts', permission: 'view', built: false },
-  { key: 'recordings', title: 'Recordings', href: '/recordings', permission: 'view', built: false },
-  { key: 'trends', title: 'Trends', href: '/trends', permission: 'view', built: false },
-  { key: 'transfer', title: 'Transfer study', href: '/transfer-study', permission: 'runStudy', built: false },
+  { key: 'alerts', title: 'Alerts', href: '/alerts', permission: 'view', built: true },
+  { key: 'recordings', title: 'Recordings', href: '/recordings', permission: 'view', built: true },
+  { key: 'trends', title: 'Trends', href: '/trends', permission: 'view', built: true },
+  { key: 'transfer', title: 'Transfer study', href: '/transfer', permission: 'runStudy', built: true },
   { key: 'network', title: 'Network', href: '/network', permission: 'view', built: true },
   { key: 'people', title: 'People', href: '/people', permission: 'managePeople', built: true },
   { key: 'outbox', title: 'Outbox', href: '/outbox', permission: 'managePeople', built: true },

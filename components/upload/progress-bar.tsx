@@ -26,7 +26,8 @@ export interface ProgressBarProps {
  */
 export function ProgressBar({ label, stages, status, tone = 'running', testID }: ProgressBarProps) {
   const overall = stages.reduce((s, st) => s + (st.value ?? 0), 0) / Math.max(1, stages.length);
-  const pct = Math.round(Math.min(1, Math.max(0, overall)) * 100);
+  // Floor, so 100 % means every stage is complete (a stage at 99.6 % still reads 99 %).
+  const pct = Math.floor(Math.min(1, Math.max(0, overall)) * 100 + 1e-9);
   const fill = tone === 'failed' ? colors.danger : colors.accent;
   return (
     <View
@@ -43,7 +44,7 @@ export function ProgressBar({ label, stages, status, tone = 'running', testID }:
         {stages.map((st, i) => (
           <View key={st.title} style={[styles.part, i > 0 && styles.partGap]}>
             <View style={styles.partTrack}>
-              <View style={[styles.partFill, { width: `${Math.round(Math.min(1, Math.max(0, st.value ?? 0)) * 100)}%`, backgroundColor: fill }]} />
+              <View style={[styles.partFill, { width: `${Math.min(1, Math.max(0, st.value ?? 0)) * 100}%`, backgroundColor: fill }]} />
             </View>
             {stages.length > 1 ? (
               <Text variant="caption" muted={st.value == null} bold={st.value != null && st.value < 1} style={styles.partTitle}>

@@ -5,7 +5,7 @@ import { StyleSheet, View } from 'react-native';
 import type { UploadMapping, UploadResponse } from '@/shared/api/recordings';
 import { ApiError, errorMessage } from '@/hooks/api-client';
 import { useAnalysisEvents, useAnalysisQuery } from '@/hooks/use-analyses';
-import { recordingKeys, unmappedColumnsOf, useUploadRecordingMutation, type UploadFile } from '@/hooks/use-recordings';
+import { recordingKeys, unmappedColumnsOf, useRecordingQuery, useUploadRecordingMutation, type UploadFile } from '@/hooks/use-recordings';
 import { Button } from '../button';
 import { Panel } from '../layout';
 import { formatBytes, formatDuration } from '../recordings/units';
@@ -46,6 +46,8 @@ export function UploadPanel() {
   const ingest = useAnalysisQuery(ingestId);
   useAnalysisEvents();
   const ingestStatus = ingest.data?.analysis.status;
+  // Once stored, the recording as it is now (the upload's answer predates the ingest job's work).
+  const stored = useRecordingQuery(phase.kind === 'done' ? phase.response.recording.id : null);
   useEffect(() => {
     if (phase.kind !== 'ingesting' || !ingest.data) return;
     const a = ingest.data.analysis;
@@ -152,7 +154,9 @@ export function UploadPanel() {
 
       {phase.kind === 'done' ? (
         <View style={styles.done}>
-          <Text variant="small">{readySummary(phase.response)}</Text>
+          <Text variant="small" testID="upload-summary">
+            {readySummary(stored.data?.recording ?? phase.response.recording)}
+          </Text>
           <TextLink href={`/recordings/${phase.response.recording.id}` as Href} label={`Open recording ${phase.response.recording.fileName}`}>
             Open the recording
           </TextLink>
@@ -225,8 +229,7 @@ export function UploadPanel() {
   );
 }
 
-function readySummary(res: UploadResponse): string {
-  const r = res.recording;
+function readySummary(r: UploadResponse['recording']): string {
   const span = r.startTime && r.endTime ? (Date.parse(r.endTime) - Date.parse(r.startTime)) / 1000 : null;
   const parts = [`${r.fileName} is ready`];
   if (r.channelCount != null) parts.push(`${r.channelCount} channels`);

@@ -11,12 +11,11 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { Queue, UnrecoverableError, Worker, type ConnectionOptions, type Job, type JobsOptions } from 'bullmq';
+import { Redis } from 'ioredis';
 import { z } from 'zod';
-import type { Db } from '../../db/client';
+import { createDb, createPool, type Db } from '../../db/client';
 import { getRecording, setRecordingStatus } from '../../db/queries/recordings';
 import { finishAnalysis, getAnalysis, markAnalysisRunning, setAnalysisProgress, type AnalysisRow } from '../../db/queries/scans';
-import { Redis } from 'ioredis';
-import { createDb, createPool } from '../../db/client';
 import { loadConfig } from '../../server/config';
 import { consoleLogger, type Logger } from '../../server/deps';
 import { createEventPublisher, eventChannel, type EventPublisher } from '../../server/events/bus';

@@ -29,7 +29,7 @@ const call = (fn: (cb: (err?: unknown) => void) => void) =>
 
 export function authRoutes(passport: KeelPassport): RouteDef[] {
   return [
-    route('auth.csrf', async ({ req }) => ({ csrfToken: await savedCsrfTokenOf(req) })),
+    route('auth.csrf', async ({ req, person }) => ({ csrfToken: await savedCsrfTokenOf(req), signedIn: !!person })),
 
     route(
       'auth.signIn',

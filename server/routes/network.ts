@@ -212,7 +212,7 @@ function plural(n: number, word: string): string {
   return `${n} ${word.endsWith('y') ? `${word.slice(0, -1)}ies` : `${word}s`}`;
 }
 
-/** Turn a unique-key race (two creates of the same code) into the same 409 as the pre-check. */
+/** A taken code (or channel name) is the unique constraint's call: 409 naming the field. */
 async function guardUnique<T>(res: Resource, v: Values, fn: () => Promise<T>): Promise<T> {
   try {
     return await fn();
@@ -224,16 +224,15 @@ async function guardUnique<T>(res: Resource, v: Values, fn: () => Promise<T>): P
 
 function duplicate(res: Resource, v: Values): ConflictError {
   const key = String(v[res.keyField]);
-  return new ConflictError(`A ${res.label} with ${res.keyField} "${key}" already exists`, [
+  const article = /^[aeiou]/i.test(res.label) ? 'An' : 'A';
+  return new ConflictError(`${article} ${res.label} with ${res.keyField} "${key}" already exists`, [
     { path: res.keyField, message: 'Already in use' },
   ]);
 }
 
-async function checkAll(db: DbOrTx, res: Resource, v: Values, id: number | null): Promise<void> {
+async function checkRefs(db: DbOrTx, res: Resource, v: Values, id: number | null): Promise<void> {
   const details = await res.checkRefs(db, v, id);
   if (details.length) throw validationError(details);
-  const clash = (await res.crud.list(db)).find((r) => r.id !== id && r[res.keyField] === v[res.keyField]);
-  if (clash) throw duplicate(res, v);
 }
 
 function changedFields(before: Values, after: Values): string[] {
@@ -260,7 +259,7 @@ function resourceRoutes(res: Resource): RouteDef[] {
   const create = async (ctx: Ctx) => {
     const v = ctx.body;
     return ctx.deps.db.transaction(async (tx) => {
-      await checkAll(tx, res, v, null);
+      await checkRefs(tx, res, v, null);
       const row = await guardUnique(res, v, () => res.crud.insert(tx, { values: v }));
       await audit(tx, ctx, 'create', row, { values: v });
       return one(tx, row);
@@ -275,7 +274,7 @@ function resourceRoutes(res: Resource): RouteDef[] {
       const parsed = res.createSchema.safeParse(merged);
       if (!parsed.success) throw validationErrorFromZod(parsed.error, merged);
       const v = parsed.data as Values;
-      await checkAll(tx, res, v, before.id);
+      await checkRefs(tx, res, v, before.id);
       const changed = changedFields(res.editable(before), v);
       if (changed.length === 0) return one(tx, before);
       const row = await guardUnique(res, v, () => res.crud.update(tx, { id: before.id, values: v }));

@@ -127,6 +127,8 @@ function handle(r: RouteDef, e: EndpointDef, opts: MountOptions): RequestHandler
           status = s;
         },
       } as RouteContext<EndpointKey>);
+      // Streams and file downloads answer by themselves (headers already sent, nothing returned).
+      if (res.headersSent) return;
       if (opts.checkResponses && status < 400) {
         const checked = e.response.safeParse(result);
         if (!checked.success) {
@@ -134,7 +136,7 @@ function handle(r: RouteDef, e: EndpointDef, opts: MountOptions): RequestHandler
           throw new InternalError(`The server built an invalid answer for ${e.method} ${e.path}`);
         }
       }
-      if (!res.headersSent) res.status(status).json(result);
+      res.status(status).json(result);
     };
     run().catch(next);
   };

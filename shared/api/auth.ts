@@ -16,7 +16,9 @@ export const personSchema = z.object({
 });
 export type Person = z.infer<typeof personSchema>;
 
-export const csrfResponseSchema = z.object({ csrfToken: z.string() });
+// `signedIn` lets the client find out whether a session exists without provoking a 401 (a
+// signed-out page load would otherwise log a console error for the /me request).
+export const csrfResponseSchema = z.object({ csrfToken: z.string(), signedIn: z.boolean() });
 export type CsrfResponse = z.infer<typeof csrfResponseSchema>;
 
 export const signInBodySchema = z.object({

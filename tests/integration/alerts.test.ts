@@ -1,8 +1,9 @@
 // The alert chain end to end: a recording simulated at high Highmoor–Saltreach transfer (the
 // north–south mode under 3 %: the poor band of the common 3–5 % rule, common practice) opens an
 // alert and e-mails the track's subscribers through the local SMTP sink (outbox_messages); an
-// operator acknowledges it with a note; a later recording at low transfer clears it (another
-// e-mail). The low-transfer recording also carries a sustained 0.70 Hz forced oscillation in the
+// operator acknowledges it with a note; another hour at high transfer keeps it poor for ten more
+// windows, so it escalates (open again, a new e-mail); a later recording at low transfer clears it
+// (another e-mail). The low-transfer recording also carries a sustained 0.70 Hz forced oscillation in the
 // east–west band: it raises a 'forced' alert and never counts as poor damping.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { trackMode, buildTarrowModel, simulateAmbient } from '../../modal/simulator';
@@ -14,6 +15,7 @@ import { ambientRecord, collectEvents, csvOf, TEST_CHANNELS, uploadReady, waitFo
 const HIGH_MW = 2950;
 const LOW_MW = 600;
 const S1 = Date.UTC(2025, 3, 1, 0, 0, 0) / 1000;
+const S1B = S1 + 3600;
 const S2 = S1 + 3 * 3600;
 const WINDOW = 1200;
 const STEP = 60;
@@ -129,6 +131,29 @@ describe('a poorly damped north–south mode', () => {
     expect(ack.details.note).toBe('Reduced Highmoor–Saltreach schedule by 300 MW per procedure.');
     await waitFor(async () => events.events.some((e) => e.type === 'alert.acknowledged' && e.data.alertId === alertId), 'the acknowledged event');
     expect((await operator.get('/api/alerts?state=acknowledged')).body.alerts.map((a: { id: number }) => a.id)).toEqual([alertId]);
+  });
+});
+
+describe('the mode staying poor', () => {
+  it('escalates the alert after ten more poor windows: open again, note kept, e-mailed', async () => {
+    const { record } = ambientRecord(HIGH_MW, { minutes: 30, seed: 43, start: S1B });
+    const rec = await uploadReady(stack, engineer, 'tarrow-high-2.csv', csvOf(record));
+    expect((await waitForAnalysis(engineer, rec, 'scan')).status).toBe('done');
+    const a = await waitFor(async () => {
+      const r = await operator.get(`/api/alerts/${alertId}`);
+      return r.body.alert.level === 2 ? r.body : undefined;
+    }, 'the escalation');
+    // the hour's gap restarts the count: the tenth poor window of the new recording escalates
+    expect(Date.parse(a.alert.escalatedAt)).toBe((S1B + 9 * STEP + WINDOW) * 1000);
+    expect(a.alert.state).toBe('open');
+    expect(a.alert.note).toBe('Reduced Highmoor–Saltreach schedule by 300 MW per procedure.');
+    expect(a.history.map((h: { action: string }) => h.action)).toEqual(['alert.opened', 'alert.acknowledged', 'alert.escalated']);
+    expect(a.history[2].details.reason).toBe('persisted');
+    await waitFor(
+      async () => (await mails(ROLE_EMAIL.operator)).some((m) => m.subject === '[Keel] Alert escalated: North–south — poorly damped mode'),
+      'the escalated e-mail',
+    );
+    expect((await operator.get('/api/alerts?track=north-south')).body.alerts).toHaveLength(1); // the same alert
   });
 });
 

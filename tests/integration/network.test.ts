@@ -68,7 +68,7 @@ describe('network', () => {
     expect(r.status).toBe(409);
     expect(r.body.error).toEqual({
       code: 'CONFLICT',
-      message: 'A area with code "highmoor" already exists',
+      message: 'An area with code "highmoor" already exists',
       details: [{ path: 'code', message: 'Already in use' }],
     });
   });

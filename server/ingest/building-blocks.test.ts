@@ -1,5 +1,8 @@
+// Unit tests of the ingest building blocks: cell and time reading, reporting-rate detection and
+// the frame grid, chunking, min/max decimation.
 import { describe, expect, it } from 'vitest';
 import { FrameAligner, standardRates } from './aligner';
+import { ChunkWriter } from './chunker';
 import { downsampleMinMax } from './downsample';
 import { FileRefusedError } from './errors';
 import { numberProblem, parseCell, parseTimeCell } from './text-values';
@@ -110,5 +113,31 @@ describe('downsampleMinMax', () => {
   it('checks its arguments', () => {
     expect(() => downsampleMinMax(new Float64Array(3), 0, 0, 10)).toThrow('downsampleMinMax: rate must be positive, got 0');
     expect(() => downsampleMinMax(new Float64Array(3), 0, 30, 0)).toThrow('downsampleMinMax: maxPoints must be a whole number ≥ 1, got 0');
+  });
+});
+
+describe('ChunkWriter', () => {
+  it('cuts frames into fixed chunks per channel, leaves out chunks with no data, counts gaps across chunks', () => {
+    const w = new ChunkWriter(2, 4);
+    w.begin(100, 10);
+    const frame = (slot: number, a: number, b: number) => w.frame(slot, Float64Array.from([a, b]));
+    frame(0, 1, 10);
+    frame(1, 1, NaN);
+    frame(2, 2, 12);
+    // slots 3..9 missing: chunk 1 (slots 4..7) holds nothing
+    frame(10, 3, 13);
+    frame(11, 3, 14);
+    w.end();
+    const chunks = w.take();
+    expect(chunks.map((c) => [c.channel, c.seq, c.startSlot, c.startTime, Array.from(c.values)])).toEqual([
+      [0, 0, 0, 100, [1, 1, 2, NaN]],
+      [1, 0, 0, 100, [10, NaN, 12, NaN]],
+      [0, 2, 8, 100.8, [NaN, NaN, 3, 3]],
+      [1, 2, 8, 100.8, [NaN, NaN, 13, 14]],
+    ]);
+    expect(w.frames).toBe(12);
+    const [qa, qb] = w.qualities(0);
+    expect(qa).toMatchObject({ samples: 12, dropouts: 7, gaps: 1, longestGap: 7 });
+    expect(qb).toMatchObject({ samples: 12, dropouts: 8, gaps: 2, longestGap: 7 });
   });
 });
