@@ -327,7 +327,6 @@ export class AmbientEngine {
   private readonly cond: GapConditioner[];
   private readonly qualityCur: Float64Array[];
   private readonly qualityBlocks: Map<number, QualitySummary>[];
-  private readonly finiteSeen: boolean[];
   private readonly firstFinite: Float64Array;
   private readonly varies: boolean[];
   private readonly longGaps: LongGap[] = [];
@@ -399,7 +398,6 @@ export class AmbientEngine {
     this.rawBlock = options.blockSamples * options.factor;
     this.qualityCur = this.used.map(() => new Float64Array(this.rawBlock));
     this.qualityBlocks = this.used.map(() => new Map());
-    this.finiteSeen = this.used.map(() => false);
     this.firstFinite = new Float64Array(nu).fill(NaN);
     this.varies = this.used.map(() => false);
     this.qScratch = new Float64Array(this.rawBlock);
@@ -475,7 +473,6 @@ export class AmbientEngine {
     }
     this.derive();
     for (let c = 0; c < this.nCh; c++) {
-      const s = this.series[c];
       const need = this.dec[c].maxOutputs(0);
       if (this.decOut.length < need) this.decOut = new Float64Array(need);
       const k = this.dec[c].finish(this.decOut);
@@ -598,8 +595,6 @@ export class AmbientEngine {
     const n = ready - from;
     const refFifo = this.refUsed >= 0 ? this.cond[this.refUsed].out : null;
     const keep = this.keepFrom();
-    const fsA = this.o.analysisRate;
-    void fsA;
     for (let c = 0; c < this.nCh; c++) {
       let scratch = this.decScratch;
       if (scratch.length < n) scratch = new Float64Array(n);
@@ -637,7 +632,7 @@ export class AmbientEngine {
       const ws = this.nextWindow * o.stepSamples;
       const we = ws + o.windowSamples;
       if (we > ready) break;
-      this.emitWindow(this.nextWindow, ws, we);
+      this.emitWindow(ws, we);
       this.nextWindow++;
       const firstBlock = Math.floor((this.nextWindow * o.stepSamples) / o.blockSamples);
       for (const b of this.blocks.keys()) if (b < firstBlock) this.blocks.delete(b);
@@ -747,7 +742,7 @@ export class AmbientEngine {
     return null;
   }
 
-  private emitWindow(w: number, ws: number, we: number): void {
+  private emitWindow(ws: number, we: number): void {
     const o = this.o;
     const rate = this.meta.rate;
     const start = this.meta.startTime + (ws * o.factor) / rate;
@@ -764,7 +759,6 @@ export class AmbientEngine {
       return;
     }
     this.onWindow({ start, end, modes: est, quality, skipped: false });
-    void w;
   }
 
   /**
@@ -1041,7 +1035,8 @@ export class AmbientEngine {
       if (!(z1.im > 0)) continue;
       const m1 = poleToMode(z1, fsA);
       if (m1.frequencyHz < lo || m1.frequencyHz > hi) continue;
-      if (!(m1.dampingPercent < o.maxDampingPercent)) continue;
+      // a stable system's ambient response decays; a non-decaying pole is a line (searched above)
+      if (!(m1.dampingPercent > 0 && m1.dampingPercent < o.maxDampingPercent)) continue;
       const bin1 = Math.min(this.kHi, Math.max(this.kLo, Math.round((m1.frequencyHz * this.nfft) / fsA))) - this.kLo;
       // poles on the spectral floor model noise, not a mode: not reported (and not worth refitting)
       if (strengthAt(bin1) < o.minStrength) continue;
@@ -1062,7 +1057,7 @@ export class AmbientEngine {
       if (taken.some((t) => Math.hypot(t.re - z.re, t.im - z.im) < 1e-6)) continue;
       const m = poleToMode(z, fsA);
       if (m.frequencyHz < lo || m.frequencyHz > hi) continue;
-      if (!(m.dampingPercent < o.maxDampingPercent)) continue;
+      if (!(m.dampingPercent > 0 && m.dampingPercent < o.maxDampingPercent)) continue;
       if (lines.some((ln) => Math.abs(ln.frequencyHz - m.frequencyHz) < lineGuardHz && m.dampingPercent < o.forced.maxDampingPercent)) continue;
       taken.push(z);
       const repPoles = fit.reps;
@@ -1175,8 +1170,9 @@ export class AmbientEngine {
       return u;
     };
     let poles: Complex[];
+    let order: number;
     try {
-      poles = acfPencilPoles(unbiased(pooled.full), o.arOrder);
+      ({ poles, order } = acfPencilPoles(unbiased(pooled.full), o.arOrder));
     } catch {
       return 'the matrix pencil of this window failed (numerically degenerate data)';
     }
@@ -1185,7 +1181,7 @@ export class AmbientEngine {
       return (z: Complex) => {
         if (!ps) {
           try {
-            ps = acfPencilPoles(unbiased(r), o.arOrder);
+            ps = acfPencilPoles(unbiased(r), o.arOrder, order).poles;
           } catch {
             ps = [];
           }
@@ -1516,12 +1512,18 @@ function goldenMax(fn: (x: number) => number, a: number, b: number, tol: number)
   return f1 > f2 ? x1 : x2;
 }
 
+/** Singular values below this fraction of the largest are noise for the pencil's order. */
+export const PENCIL_REL_TOL = 0.01;
+
 /**
  * Matrix pencil on an autocorrelation sequence r[0…M] (lags 1…M used; lag 0 carries the
  * measurement noise): Hankel matrix with pencil L = ⌊M/3⌋ (paper: Sarkar & Pereira 1995, L in
- * N/3…N/2), SVD, the `order` dominant right singular vectors, poles = eigenvalues of V1⁺·V2.
+ * N/3…N/2), SVD, the dominant right singular vectors, poles = eigenvalues of V1⁺·V2. The order is
+ * the number of singular values ≥ PENCIL_REL_TOL × the largest, at most `order` (or exactly
+ * `fixedOrder` when given, so jackknife replicates keep the full window's order): surplus orders
+ * fit the estimation noise of the long lags with spurious, nearly undamped poles.
  */
-export function acfPencilPoles(r: Float64Array, order: number): Complex[] {
+export function acfPencilPoles(r: Float64Array, order: number, fixedOrder?: number): { poles: Complex[]; order: number } {
   const M = r.length - 1;
   const L = Math.floor(M / 3);
   const rows = M - L;
@@ -1529,7 +1531,13 @@ export function acfPencilPoles(r: Float64Array, order: number): Complex[] {
   for (let i = 0; i < rows; i++) for (let j = 0; j <= L; j++) Y.set(i, j, r[1 + i + j]);
   const dec = svd(Y, { computeLeftSingularVectors: false, computeRightSingularVectors: true });
   const V = dec.rightSingularVectors;
-  const p = Math.min(order, L);
+  const sv = dec.diagonal;
+  let p = fixedOrder ?? 0;
+  if (fixedOrder === undefined) {
+    while (p < Math.min(order, L) && sv[p] >= PENCIL_REL_TOL * sv[0]) p++;
+    p = Math.max(2, p);
+  }
+  p = Math.min(p, L);
   const V1 = new Matrix(L, p);
   const V2 = new Matrix(L, p);
   for (let i = 0; i < L; i++) {
@@ -1539,5 +1547,5 @@ export function acfPencilPoles(r: Float64Array, order: number): Complex[] {
     }
   }
   const A = lstsq(V1, V2);
-  return complexEigenvalues(A);
+  return { poles: complexEigenvalues(A), order: p };
 }

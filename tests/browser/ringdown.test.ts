@@ -150,7 +150,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await page.waitForURL(/\/fits\/\d+$/, { timeout: 20_000 });
         const fitId = Number(/\/fits\/(\d+)$/.exec(page.url())![1]);
         await waitForFitDone(page, fitId);
-        await page.getByText(/20\.0 s from \d{4}-\d\d-\d\d 14:\d\d:05\.1 UTC/).first().waitFor();
+        await page.getByText(/20\.0 s from \d{4}-\d\d-\d\d \d\d:\d\d:\d\d\.\d UTC/).first().waitFor();
 
         // Both methods, side by side; every number with its unit.
         const table = page.getByTestId('modes-table');
