@@ -7,7 +7,7 @@ const zodLocalesEn = path.join(__dirname, 'scripts', 'metro', 'zod-locales-en.js
 const upstream = config.resolver.resolveRequest;
 
 config.resolver.resolveRequest = (context, moduleName, platform) => {
-  if (/^\.\.\/locales\/index(\.c?js)?$/.test(moduleName) && /[\\/]zod[\\/]v4[\\/]classic[\\/]/.test(context.originModulePath)) {
+  if (/^\.\.\/locales\/index(\.c?js)?$/.test(moduleName) && /[\\/]zod[\\/]v4[\\/](classic|core|mini)[\\/]/.test(context.originModulePath)) {
     return { type: 'sourceFile', filePath: zodLocalesEn };
   }
   return (upstream ?? context.resolveRequest)(context, moduleName, platform);

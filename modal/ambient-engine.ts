@@ -1054,7 +1054,8 @@ export class AmbientEngine {
           }
         }
       }
-      if (taken.some((t) => Math.hypot(t.re - z.re, t.im - z.im) < 1e-6)) continue;
+      // two candidates can lead to the same stage-2 pole
+      if (taken.some((t) => Math.hypot(t.re - z.re, t.im - z.im) < 1e-4)) continue;
       const m = poleToMode(z, fsA);
       if (m.frequencyHz < lo || m.frequencyHz > hi) continue;
       if (!(m.dampingPercent > 0 && m.dampingPercent < o.maxDampingPercent)) continue;
@@ -1534,8 +1535,18 @@ export function acfPencilPoles(r: Float64Array, order: number, fixedOrder?: numb
   const sv = dec.diagonal;
   let p = fixedOrder ?? 0;
   if (fixedOrder === undefined) {
-    while (p < Math.min(order, L) && sv[p] >= PENCIL_REL_TOL * sv[0]) p++;
-    p = Math.max(2, p);
+    // the signal subspace ends at the largest drop between consecutive singular values (among those
+    // above PENCIL_REL_TOL of the largest), a common rule for the pencil order
+    const maxP = Math.min(order, L);
+    let best = 0;
+    p = 2;
+    for (let k = 1; k < maxP && sv[k] >= PENCIL_REL_TOL * sv[0]; k++) {
+      const gap = sv[k - 1] / sv[k];
+      if (gap > best && k >= 2) {
+        best = gap;
+        p = k;
+      }
+    }
   }
   p = Math.min(p, L);
   const V1 = new Matrix(L, p);

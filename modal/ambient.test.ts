@@ -162,6 +162,17 @@ describe('estimateAmbientWindow on known-answer data', () => {
     expect(w.quality['a1.x']).toEqual({ samples: 36000, dropouts: 0, gaps: 0, longestGap: 0, flatLine: 0, outliers: 0 });
   });
 
+  it('the acf-matrix-pencil method finds the same mode, with an interval', () => {
+    const w = estimateAmbientWindow(synth(4), { ...OPTS, method: 'acf-matrix-pencil', arOrder: 12 });
+    const ns = nearest(w, 0.3)!;
+    expect(ns.frequencyHz).toBeCloseTo(0.3, 2);
+    expect(Math.abs(ns.dampingPercent - 3)).toBeLessThan(1.5);
+    expect(ns.dampingCi[0]).toBeLessThan(ns.dampingPercent);
+    expect(ns.dampingCi[1]).toBeGreaterThan(ns.dampingPercent);
+    // no nearly undamped spurious poles from surplus pencil orders
+    expect(w.modes.filter((m) => !m.forced && m.dampingPercent < 1)).toEqual([]);
+  });
+
   it('Monte Carlo, 12 windows at 3 %: bias, spread and 90 % interval coverage (paper: delete-a-group jackknife, Künsch 1989)', () => {
     const d: number[] = [];
     let coverD = 0;

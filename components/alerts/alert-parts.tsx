@@ -41,7 +41,7 @@ export function alertDuration(a: AlertSummary, now: number, fetchedAt: number): 
 /** A compact alert card that opens the alert's page. */
 export function AlertCard({ alert, now, fetchedAt, showTrack = true }: { alert: AlertSummary; now: number; fetchedAt: number; showTrack?: boolean }) {
   const band = alert.kind === 'forced' ? 'forced' : 'poor';
-  const lasted = formatDuration(alertDuration(alert, now, fetchedAt));
+  const lasted = formatDuration(alertDuration(alert, now, fetchedAt), { coarse: true });
   const worst = alert.worstDamping != null ? formatPercent(alert.worstDamping) : null;
   const title = showTrack ? alert.trackName : kindWords(alert);
   return (
@@ -87,7 +87,7 @@ export function Caution({ text, testID }: { text: string; testID?: string }) {
   return (
     <View style={styles.caution} role="note" aria-label="Caution" testID={testID ?? 'caution'}>
       <Text variant="small" bold style={styles.cautionHead}>
-        Advisory
+        Caution
       </Text>
       <Text variant="small">{text}</Text>
     </View>

@@ -4,7 +4,7 @@
 // (admin, engineer, operator — the server enforces the same). The advisory caution is always shown.
 import { useMemo, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import type { AlertDetailResponse } from '@/shared/api/alerts';
+import { acknowledgeBodySchema, type AlertDetailResponse } from '@/shared/api/alerts';
 import { ApiError, errorMessage } from '@/hooks/api-client';
 import { useAcknowledgeAlertMutation, useAlertQuery } from '@/hooks/use-alerts';
 import { useCan } from '@/hooks/use-auth';
@@ -71,7 +71,7 @@ function AlertView({ d, fetchedAt }: { d: AlertDetailResponse; fetchedAt: number
   const bp = useBreakpoint();
   const now = useNow(10_000);
   const band = a.kind === 'forced' ? 'forced' : 'poor';
-  const lasted = formatDuration(alertDuration(a, now, fetchedAt));
+  const lasted = formatDuration(alertDuration(a, now, fetchedAt), { coarse: true });
 
   const summary = (
     <Panel label="Summary" testID="alert-summary">
@@ -85,12 +85,12 @@ function AlertView({ d, fetchedAt }: { d: AlertDetailResponse; fetchedAt: number
         ) : null}
       </View>
       <View style={styles.facts}>
-        <Fact label="Lasted" value={a.clearedAt ? lasted : `${lasted}, still running`} testID="alert-lasted" />
+        <Fact label="Lasted" value={a.clearedAt ? lasted : `${lasted}, still running`} testID="alert-lasted" words />
         <Fact label="Opened" value={formatDateTime(a.openedAt)} />
         {a.escalatedAt ? <Fact label="Escalated" value={formatDateTime(a.escalatedAt)} /> : null}
-        <Fact label="Cleared" value={a.clearedAt ? formatDateTime(a.clearedAt) : 'not yet'} />
+        <Fact label="Cleared" value={a.clearedAt ? formatDateTime(a.clearedAt) : 'not yet'} words={!a.clearedAt} />
         {a.worstDamping != null ? <Fact label="Lowest damping" value={`${formatPercent(a.worstDamping)}${d.worstAt ? ` at ${formatClock(d.worstAt)}` : ''}`} /> : null}
-        <Fact label="Thresholds" value={`poor < ${formatPercent(a.poorBelow)}, low < ${formatPercent(a.lowBelow)}`} />
+        <Fact label="Thresholds" value={`poor under ${formatPercent(a.poorBelow)}, low under ${formatPercent(a.lowBelow)}`} words />
       </View>
     </Panel>
   );
@@ -135,15 +135,16 @@ function AlertView({ d, fetchedAt }: { d: AlertDetailResponse; fetchedAt: number
   );
 }
 
-function Fact({ label, value, testID }: { label: string; value: string; testID?: string }) {
+function Fact({ label, value, testID, words }: { label: string; value: string; testID?: string; words?: boolean }) {
+  const V = words ? Text : Num;
   return (
     <View style={styles.fact}>
       <Text variant="small" muted style={styles.factLabel}>
         {label}
       </Text>
-      <Num variant="small" style={styles.factValue} testID={testID}>
+      <V variant="small" style={styles.factValue} testID={testID}>
         {value}
-      </Num>
+      </V>
     </View>
   );
 }
@@ -154,7 +155,8 @@ function AcknowledgePanel({ d }: { d: AlertDetailResponse }) {
   const ack = useAcknowledgeAlertMutation();
   const [note, setNote] = useState('');
   const [done, setDone] = useState(false);
-  const fieldError = ack.error instanceof ApiError ? ack.error.fieldErrors().note : undefined;
+  const [localError, setLocalError] = useState<string | undefined>();
+  const fieldError = localError ?? (ack.error instanceof ApiError ? ack.error.fieldErrors().note : undefined);
   const formError = ack.error && !fieldError ? errorMessage(ack.error) : undefined;
 
   const acknowledged = a.acknowledgedBy ? (
@@ -190,6 +192,13 @@ function AcknowledgePanel({ d }: { d: AlertDetailResponse }) {
     );
   }
   const submit = () => {
+    // The API's own schema checks the note first, so an empty note gets the same words without a round trip.
+    const parsed = acknowledgeBodySchema.safeParse({ note });
+    if (!parsed.success) {
+      setLocalError(parsed.error.issues[0]?.message ?? 'A note is required');
+      return;
+    }
+    setLocalError(undefined);
     ack.mutate(
       { id: a.id, note },
       {
@@ -208,7 +217,10 @@ function AcknowledgePanel({ d }: { d: AlertDetailResponse }) {
         label="Note"
         hint="Say what you saw or did. Kept with the alert and in the audit log."
         value={note}
-        onChangeText={setNote}
+        onChangeText={(t) => {
+          setNote(t);
+          if (localError) setLocalError(undefined);
+        }}
         multiline
         required
         error={fieldError}
@@ -354,7 +366,7 @@ const styles = StyleSheet.create({
   chips: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.sm, marginBottom: space.md },
   facts: { gap: space.xs },
   fact: { flexDirection: 'row', gap: space.md, alignItems: 'baseline' },
-  factLabel: { width: 118 },
+  factLabel: { width: 112 },
   factValue: { flex: 1 },
   ackDone: { gap: space.xs, marginBottom: space.md },
   note: { fontStyle: 'italic' },

@@ -1,7 +1,6 @@
 // Axis ticks and their labels. Time is shown in UTC (the time base of every stored timestamp,
 // components/format.ts), so a chart reads the same for everyone; values as plain numbers with the
 // unit written once in the axis title.
-import { scaleLinear } from 'd3-scale';
 
 const MINUTE = 60_000;
 const HOUR = 60 * MINUTE;
@@ -54,12 +53,26 @@ export function timeAxisTitle(from: number, to: number): string {
   return same ? `UTC, ${da}` : `UTC, ${da} – ${db}`;
 }
 
-/** Round value ticks (d3's 1-2-5 steps) and the decimals that show them without noise. */
+/**
+ * Round value ticks at a 1-2-5 step (the usual "nice numbers" rule, as d3-array's ticks) giving
+ * about `count` ticks over [min, max], and the decimals that show them without noise. Written out
+ * here rather than importing d3-scale, which would bring its time-format and interpolation code
+ * into the web bundle for this one function.
+ */
 export function valueTicks(min: number, max: number, count: number): { ticks: number[]; decimals: number } {
-  const s = scaleLinear().domain([min, max]);
-  const ticks = s.ticks(Math.max(2, count));
-  const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : Math.abs(max - min) || 1;
-  const decimals = Math.max(0, Math.min(4, -Math.floor(Math.log10(step) + 1e-9)));
+  const lo = Math.min(min, max);
+  const hi = Math.max(min, max);
+  const n = Math.max(2, count);
+  const raw = (hi - lo) / n;
+  if (!(raw > 0) || !Number.isFinite(raw)) return { ticks: Number.isFinite(lo) ? [lo] : [], decimals: 0 };
+  const power = Math.floor(Math.log10(raw));
+  const base = 10 ** power;
+  const f = raw / base;
+  const step = (f >= 7.07 ? 10 : f >= 3.16 ? 5 : f >= 1.41 ? 2 : 1) * base;
+  const ticks: number[] = [];
+  // Integer multiples of the step, so 0.1 + 0.2 rounding never shows up in a label.
+  for (let k = Math.ceil(lo / step - 1e-9); k * step <= hi + step * 1e-9; k++) ticks.push(Number((k * step).toPrecision(12)));
+  const decimals = Math.max(0, Math.min(6, -Math.floor(Math.log10(step) + 1e-9)));
   return { ticks, decimals };
 }
 

@@ -1,6 +1,6 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { router, type Href } from 'expo-router';
-import { useEffect, useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import { Controller, useForm, useWatch } from 'react-hook-form';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { z } from 'zod';
@@ -82,11 +82,14 @@ export function FitFormPanel({ recording, interval, onInterval, initial, title =
     },
   });
 
-  // A brushed selection fills the fields (on the sample grid).
+  // A brushed selection fills the fields (on the sample grid). What came from it is remembered,
+  // so that the fields do not hand the rounded values back as a choice of their own.
+  const fromProp = useRef<[number, number] | null>(interval ? [two(interval[0] - start), two(interval[1] - start)] : null);
   useEffect(() => {
     if (!interval) return;
     const f = two(round(interval[0] - start, rate));
     const t = two(round(interval[1] - start, rate));
+    fromProp.current = [f, t];
     const cur = form.getValues();
     if (cur.fromSeconds !== f) form.setValue('fromSeconds', f, { shouldValidate: form.formState.isSubmitted });
     if (cur.toSeconds !== t) form.setValue('toSeconds', t, { shouldValidate: form.formState.isSubmitted });
@@ -97,6 +100,7 @@ export function FitFormPanel({ recording, interval, onInterval, initial, title =
   const [fromS, toS] = useWatch({ control: form.control, name: ['fromSeconds', 'toSeconds'] });
   useEffect(() => {
     if (typeof fromS !== 'number' || typeof toS !== 'number' || !Number.isFinite(fromS) || !Number.isFinite(toS) || toS <= fromS) return;
+    if (fromProp.current && fromProp.current[0] === fromS && fromProp.current[1] === toS) return;
     const a = start + fromS;
     const b = start + toS;
     if (!interval || Math.abs(interval[0] - a) > 1e-3 || Math.abs(interval[1] - b) > 1e-3) onInterval(a, b);

@@ -1,13 +1,14 @@
 // Ages and durations in words, with their units: "45 s", "12 min", "3 h 5 min", "2 d 4 h".
 import { useEffect, useState } from 'react';
 
-export function formatDuration(seconds: number): string {
+/** `coarse`: whole minutes from one minute on (how long an alert has lasted). */
+export function formatDuration(seconds: number, opts: { coarse?: boolean } = {}): string {
   if (!Number.isFinite(seconds) || seconds < 0) return '—';
   const s = Math.round(seconds);
   if (s < 60) return `${s} s`;
   const m = Math.floor(s / 60);
   // Under 10 minutes the seconds matter (a 5-minute staleness limit against "5 min 40 s").
-  if (m < 10) return s % 60 ? `${m} min ${s % 60} s` : `${m} min`;
+  if (m < 10 && !opts.coarse) return s % 60 ? `${m} min ${s % 60} s` : `${m} min`;
   if (m < 60) return `${m} min`;
   const h = Math.floor(m / 60);
   if (h < 48) return m % 60 ? `${h} h ${m % 60} min` : `${h} h`;

@@ -183,7 +183,7 @@ function TrackCard({ track: t, now, fetchedAt }: { track: WatchTrack; now: numbe
 
       <View style={styles.spark}>
         <Text variant="caption" muted>
-          Damping, last 24 h (UTC {formatClock(new Date(from).toISOString()).replace(' UTC', '')}–{formatClock(new Date(to).toISOString()).replace(' UTC', '')})
+          Damping, 24 h to {formatClock(new Date(to).toISOString())}
         </Text>
         <Sparkline points={spark} poorBelow={t.poorBelow} lowBelow={t.lowBelow} from={from} to={to} bucketMs={SPARKLINE_BUCKET_MINUTES * 60_000} label={sparkLabel} testID={`spark-${t.code}`} />
       </View>

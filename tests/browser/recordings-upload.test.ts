@@ -188,7 +188,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const facts = page.getByTestId('recording-facts');
         await facts.getByText('25 min 0 s').waitFor();
         await facts.getByText('30 frames/s').waitFor();
-        expect(await facts.getByText('45,000').count()).toBe(1);
+        expect(await facts.getByText('45,000', { exact: true }).count()).toBe(1);
         // The mapped column landed on its channel, and says where it came from.
         await page.getByTestId('channels-panel').getByText(`from column “${UNKNOWN_COLUMN}”`).waitFor();
         // Signal (min/max per bucket: 45 000 samples on a chart) and the spectrum are drawn.

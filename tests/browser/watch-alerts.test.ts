@@ -1,7 +1,7 @@
 // An operator at a phone (390×844) and at a wide screen (1440×900): Watch shows the north–south
 // mode poorly damped, with its open alert on top; the alert's page shows the damping trace with
 // the 3 % and 5 % lines, the mode shape, who was told and the advisory caution; an empty note is
-// refused with the server's message; a note acknowledges the alert; the Alerts list files it under
+// refused (the API schema's words) and changes nothing; a note acknowledges the alert; the Alerts list files it under
 // "Acknowledged". A planner sees the alert but no way to acknowledge it (DESIGN.md §5.3).
 //
 // Data: three 30-minute Tarrow recordings at rising Highmoor–Saltreach transfer (1300, 2200,
@@ -109,7 +109,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         expect(told).toContain('operator@tarrow.example');
         await shotWhole(b, 'alert');
 
-        // An empty note is refused, with the server's words.
+        // An empty note is refused with the words of the API schema (checked before sending), and nothing changes.
         const ack = page.getByRole('button', { name: `Acknowledge alert ${alertId} on North–south` });
         await ack.click();
         await page.getByText('A note is required: say what you saw or did').waitFor({ timeout: 10_000 });
