@@ -455,6 +455,49 @@ export const modeShapes = pgTable(
   (t) => [primaryKey({ columns: [t.estimateId, t.channelId] })],
 );
 
+/** Rollup bucket widths, seconds: 10 minutes, an hour, a day (each a multiple of the one before). */
+export const ROLLUP_SPANS = [600, 3600, 86_400] as const;
+
+/**
+ * Pre-aggregated estimates of each track per epoch-aligned time bucket ([start, start + span) by
+ * `at`), at the three ROLLUP_SPANS, so a long Trends span or the Watch sparkline reads a few
+ * hundred rows instead of every estimate. Sums and counts (not means) so buckets combine exactly.
+ *
+ * Derived data, kept by the database itself: statement-level triggers on mode_estimates recompute
+ * the touched buckets (10-minute ones from the estimates, hours from 10-minute rows, days from
+ * hours) under a per-(track, day) advisory lock; estimate_rollups_rebuild(from, to) recomputes a
+ * range (bulk loads, repairs). Migration 0003_estimate_rollup_triggers holds the SQL.
+ */
+export const estimateRollups = pgTable(
+  'estimate_rollups',
+  {
+    trackId: integer('track_id')
+      .notNull()
+      .references(() => modeTracks.id, { onDelete: 'cascade' }),
+    spanSeconds: integer('span_seconds').notNull(),
+    start: tstz('start').notNull(),
+    /** Every estimate of the track in the bucket (natural and forced). */
+    count: integer('count').notNull(),
+    naturalCount: integer('natural_count').notNull(),
+    frequencySum: doublePrecision('frequency_sum').notNull(),
+    naturalFrequencySum: doublePrecision('natural_frequency_sum').notNull(),
+    /** Damping statistics over natural-mode estimates (null min/max when there is none). */
+    dampingMin: doublePrecision('damping_min'),
+    dampingMax: doublePrecision('damping_max'),
+    dampingSum: doublePrecision('damping_sum').notNull(),
+    /** Sums and counts of the natural estimates' CI bounds (an estimate may have none). */
+    dampingLoSum: doublePrecision('damping_lo_sum').notNull(),
+    dampingLoCount: integer('damping_lo_count').notNull(),
+    dampingHiSum: doublePrecision('damping_hi_sum').notNull(),
+    dampingHiCount: integer('damping_hi_count').notNull(),
+  },
+  (t) => [
+    primaryKey({ columns: [t.trackId, t.spanSeconds, t.start] }),
+    check('estimate_rollups_span_check', sql`${t.spanSeconds} in (600, 3600, 86400)`),
+    check('estimate_rollups_count_check', sql`${t.count} > 0 and ${t.naturalCount} >= 0 and ${t.naturalCount} <= ${t.count}`),
+  ],
+);
+
 // ---------------------------------------------------------------- alerts
 
 export const ALERT_KIND_VALUES = ['poor', 'forced'] as const;

@@ -1515,12 +1515,14 @@ function goldenMax(fn: (x: number) => number, a: number, b: number, tol: number)
 
 /** Singular values below this fraction of the largest are noise for the pencil's order. */
 export const PENCIL_REL_TOL = 0.01;
+/** A ratio of consecutive singular values at least this marks the end of the signal subspace. */
+export const PENCIL_GAP = 3;
 
 /**
  * Matrix pencil on an autocorrelation sequence r[0…M] (lags 1…M used; lag 0 carries the
  * measurement noise): Hankel matrix with pencil L = ⌊M/3⌋ (paper: Sarkar & Pereira 1995, L in
  * N/3…N/2), SVD, the dominant right singular vectors, poles = eigenvalues of V1⁺·V2. The order is
- * the number of singular values ≥ PENCIL_REL_TOL × the largest, at most `order` (or exactly
+ * where the singular values last drop clearly (see PENCIL_GAP), at most `order` (or exactly
  * `fixedOrder` when given, so jackknife replicates keep the full window's order): surplus orders
  * fit the estimation noise of the long lags with spurious, nearly undamped poles.
  */
@@ -1535,17 +1537,12 @@ export function acfPencilPoles(r: Float64Array, order: number, fixedOrder?: numb
   const sv = dec.diagonal;
   let p = fixedOrder ?? 0;
   if (fixedOrder === undefined) {
-    // the signal subspace ends at the largest drop between consecutive singular values (among those
-    // above PENCIL_REL_TOL of the largest), a common rule for the pencil order
+    // the signal subspace ends at the last clear drop (≥ PENCIL_GAP) between consecutive singular
+    // values above PENCIL_REL_TOL of the largest; noise singular values fall off gently
     const maxP = Math.min(order, L);
-    let best = 0;
     p = 2;
-    for (let k = 1; k < maxP && sv[k] >= PENCIL_REL_TOL * sv[0]; k++) {
-      const gap = sv[k - 1] / sv[k];
-      if (gap > best && k >= 2) {
-        best = gap;
-        p = k;
-      }
+    for (let k = 2; k <= maxP && sv[k - 1] >= PENCIL_REL_TOL * sv[0]; k++) {
+      if (k < sv.length && sv[k - 1] / sv[k] >= PENCIL_GAP) p = k;
     }
   }
   p = Math.min(p, L);

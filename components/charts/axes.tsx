@@ -113,6 +113,8 @@ export interface RefLineSpec {
   label: string;
   color: string;
   dash?: string;
+  /** Where the label sits along the line (default 'end', the right). */
+  align?: 'start' | 'end';
 }
 
 /** A labelled horizontal reference line (thresholds). The label sits just above the line, right-aligned. */
@@ -123,7 +125,7 @@ export function RefLine({ plot, scale, spec, labelBelow }: { plot: Plot; scale: 
   return (
     <G>
       <Line x1={plot.x} x2={plot.x + plot.w} y1={y} y2={y} stroke={spec.color} strokeWidth={1.5} strokeDasharray={spec.dash ?? '6 4'} />
-      <HaloText x={plot.x + plot.w - 4} y={ty} color={spec.color} anchor="end" bold>
+      <HaloText x={spec.align === 'start' ? plot.x + 6 : plot.x + plot.w - 4} y={ty} color={spec.color} anchor={spec.align === 'start' ? 'start' : 'end'} bold>
         {spec.label}
       </HaloText>
     </G>

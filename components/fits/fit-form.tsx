@@ -78,7 +78,7 @@ export function FitFormPanel({ recording, interval, onInterval, initial, title =
       order: initial?.order === undefined || initial.order === 'auto' ? 'auto' : String(initial.order),
       bandLow: initial?.bandHz?.[0] ?? FIT_DEFAULT_BAND[0],
       bandHigh: initial?.bandHz?.[1] ?? FIT_DEFAULT_BAND[1],
-      channels: initial?.channels?.filter((c) => all.includes(c)) ?? all,
+      channels: initial?.channels?.length ? initial.channels.filter((c) => all.includes(c)) : all,
     },
   });
 

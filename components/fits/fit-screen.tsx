@@ -233,7 +233,8 @@ function FitView({ fit, recording, recordingError }: { fit: FitDetailResponse; r
         interval={interval}
         onInterval={(x, y) => setInterval2([x, y])}
         initial={{
-          channels: fit.channels,
+          // Until the fit is done the API may not list its channels yet: then every channel.
+          channels: fit.channels.length ? fit.channels : undefined,
           order: a.settings.order === 'auto' || typeof a.settings.order === 'number' ? (a.settings.order as 'auto' | number) : 'auto',
           bandHz: Array.isArray(a.settings.bandHz) ? (a.settings.bandHz as [number, number]) : undefined,
         }}

@@ -333,7 +333,7 @@ function StudyResult({ study, wide, updating }: { study: TransferStudy; wide: bo
               pointsLabel="Scan window"
               pointColor={ANGLE_COLOR}
               fit={aFit ? { points: study.angle.line, label: 'Least-squares line', bandLabel: 'Band of the line', intercept: aFit.intercept, slope: aFit.slope } : undefined}
-              refLines={[{ y: study.angle.limitDeg, label: `${study.angle.limitDeg}° practical limit`, color: colors.ink }]}
+              refLines={[{ y: study.angle.limitDeg, label: `${study.angle.limitDeg}° practical limit`, color: colors.ink, align: 'start' }]}
               projections={angleProj}
               testID="study-angle-chart"
             />

@@ -1,8 +1,9 @@
-// Mode estimates of tracks over time: raw ranges, time buckets for long spans, one estimate with
-// its shape and source, and the newest estimate of each track with its scan step.
-import { and, asc, desc, eq, gte, inArray, isNotNull, lte, sql, type SQL } from 'drizzle-orm';
+// Mode estimates of tracks over time: raw ranges, time buckets for long spans (from the rollups,
+// estimate_rollups, where whole rollup buckets fit), one estimate with its shape and source, and the
+// newest estimate of each track with its scan step.
+import { and, asc, desc, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
 import type { DbOrTx } from '../client';
-import { analyses, areas, channels, fits, modeEstimates, modeShapes, modeTracks, scanWindows, sites } from '../schema';
+import { analyses, areas, channels, estimateRollups, fits, modeEstimates, modeShapes, modeTracks, ROLLUP_SPANS, scanWindows, sites } from '../schema';
 
 export type EstimateRow = typeof modeEstimates.$inferSelect;
 
@@ -12,12 +13,24 @@ function rangeConds(p: { trackId: number; from: Date; to: Date; naturalOnly?: bo
   return c;
 }
 
+/** Number of a track's estimates in [from, to]: full rollup buckets plus the estimates at the edges. */
 export async function countTrackEstimates(db: DbOrTx, params: { trackId: number; from: Date; to: Date; naturalOnly?: boolean }): Promise<number> {
-  const [row] = await db
-    .select({ n: sql<number>`count(*)::int` })
-    .from(modeEstimates)
-    .where(and(...rangeConds(params)));
-  return row.n;
+  const plan = planRollupCover(params.from.getTime(), params.to.getTime(), ROLLUP_SPANS_DESC);
+  const parts: SQL[] = [];
+  const raw = rawEdgeCondition(plan);
+  if (raw) {
+    const c = [eq(modeEstimates.trackId, params.trackId), raw];
+    if (params.naturalOnly) c.push(eq(modeEstimates.forced, false));
+    parts.push(sql`select count(*)::float8 as n from ${modeEstimates} where ${and(...c)}`);
+  }
+  const roll = rollupCondition(plan);
+  if (roll) {
+    const n = params.naturalOnly ? estimateRollups.naturalCount : estimateRollups.count;
+    parts.push(sql`select coalesce(sum(${n}), 0)::float8 as n from ${estimateRollups} where ${estimateRollups.trackId} = ${params.trackId} and ${roll}`);
+  }
+  if (parts.length === 0) return 0;
+  const r = await db.execute<{ n: number }>(sql`select coalesce(sum(n), 0)::int as n from (${sql.join(parts, sql` union all `)}) p`);
+  return Number(r.rows[0].n);
 }
 
 /** Raw estimates of a track in [from, to], oldest first; `afterId` pages (keyset on at, id). */
@@ -43,8 +56,156 @@ export interface BucketRow {
   forcedCount: number;
 }
 
-/** Time buckets of `bucketSeconds` (aligned to the epoch); damping statistics over natural estimates. */
+// ---------------------------------------------------------------- rollups (db/schema.ts estimateRollups)
+
+const ROLLUP_SPANS_DESC = [...ROLLUP_SPANS].sort((a, b) => b - a);
+
+/** A cover of [fromMs, toMs] (both inclusive): full rollup buckets, and the estimates left at the two edges. */
+export interface RollupCover {
+  /** Full buckets of `span` seconds whose starts lie in [fromMs, toMs), epoch ms. */
+  rollups: { span: number; fromMs: number; toMs: number }[];
+  /** Edges read from the estimates: at in [fromMs, toMs) for the first, [fromMs, toMs] for the second. */
+  head: { fromMs: number; toMs: number } | null;
+  tail: { fromMs: number; toMs: number } | null;
+}
+
+/**
+ * Covers [fromMs, toMs] with the coarsest epoch-aligned rollup buckets that fit wholly inside it,
+ * then finer ones towards both edges; what no bucket covers (less than the finest span at each
+ * end) is left to the estimates. `spans` are in seconds, coarsest first, each a multiple of the
+ * next (so a bucket of one span is a union of buckets of the finer ones).
+ */
+export function planRollupCover(fromMs: number, toMs: number, spans: readonly number[]): RollupCover {
+  const rollups: RollupCover['rollups'] = [];
+  if (!(toMs >= fromMs)) return { rollups, head: null, tail: null };
+  // the part not yet covered: [lo, hi) on the left edge and [hi2, toMs] on the right edge
+  let lo = fromMs;
+  let hi = Infinity; // left edge not yet split off
+  let hi2 = Infinity;
+  for (const span of spans) {
+    const s = span * 1000;
+    if (hi === Infinity) {
+      const a = Math.ceil(fromMs / s) * s;
+      const b = Math.floor(toMs / s) * s;
+      if (a < b) {
+        rollups.push({ span, fromMs: a, toMs: b });
+        hi = a;
+        hi2 = b;
+      }
+      continue;
+    }
+    // left edge [lo, hi): hi is a multiple of s
+    const a = Math.ceil(lo / s) * s;
+    if (a < hi) {
+      rollups.push({ span, fromMs: a, toMs: hi });
+      hi = a;
+    }
+    // right edge [hi2, toMs]
+    const b = Math.floor(toMs / s) * s;
+    if (hi2 < b) {
+      rollups.push({ span, fromMs: hi2, toMs: b });
+      hi2 = b;
+    }
+  }
+  if (hi === Infinity) return { rollups, head: null, tail: { fromMs, toMs } };
+  return { rollups, head: lo < hi ? { fromMs: lo, toMs: hi } : null, tail: { fromMs: hi2, toMs } };
+}
+
+const ts = (ms: number) => sql`${new Date(ms).toISOString()}::timestamptz`;
+
+function rawEdgeCondition(plan: RollupCover): SQL | null {
+  const c: SQL[] = [];
+  if (plan.head) c.push(sql`(${modeEstimates.at} >= ${ts(plan.head.fromMs)} and ${modeEstimates.at} < ${ts(plan.head.toMs)})`);
+  if (plan.tail) c.push(sql`(${modeEstimates.at} >= ${ts(plan.tail.fromMs)} and ${modeEstimates.at} <= ${ts(plan.tail.toMs)})`);
+  return c.length ? sql`(${sql.join(c, sql` or `)})` : null;
+}
+
+function rollupCondition(plan: RollupCover): SQL | null {
+  if (plan.rollups.length === 0) return null;
+  const c = plan.rollups.map(
+    (r) => sql`(${estimateRollups.spanSeconds} = ${r.span} and ${estimateRollups.start} >= ${ts(r.fromMs)} and ${estimateRollups.start} < ${ts(r.toMs)})`,
+  );
+  return sql`(${sql.join(c, sql` or `)})`;
+}
+
+/**
+ * Time buckets of `bucketSeconds` (aligned to the epoch); damping statistics over natural estimates.
+ * Reads the rollups for every whole rollup bucket inside [from, to] whose span divides
+ * bucketSeconds (so it nests in one output bucket), and the estimates for the rest.
+ */
 export async function trackEstimateBuckets(
+  db: DbOrTx,
+  params: { trackId: number; from: Date; to: Date; bucketSeconds: number; naturalOnly?: boolean },
+): Promise<BucketRow[]> {
+  const b = params.bucketSeconds;
+  const spans = ROLLUP_SPANS_DESC.filter((s) => b % s === 0);
+  const plan = planRollupCover(params.from.getTime(), params.to.getTime(), spans);
+  const parts: SQL[] = [];
+  const raw = rawEdgeCondition(plan);
+  if (raw) {
+    const natural = sql`not ${modeEstimates.forced}`;
+    parts.push(sql`
+      select floor(extract(epoch from ${modeEstimates.at}) / ${b}) * ${b} as bucket,
+             count(*) as n, count(*) filter (where ${natural}) as nn,
+             sum(${modeEstimates.frequencyHz}) as fs, sum(${modeEstimates.frequencyHz}) filter (where ${natural}) as nfs,
+             min(${modeEstimates.dampingPercent}) filter (where ${natural}) as dmin, max(${modeEstimates.dampingPercent}) filter (where ${natural}) as dmax,
+             sum(${modeEstimates.dampingPercent}) filter (where ${natural}) as ds,
+             sum(${modeEstimates.dampingLo}) filter (where ${natural}) as los, count(${modeEstimates.dampingLo}) filter (where ${natural}) as lon,
+             sum(${modeEstimates.dampingHi}) filter (where ${natural}) as his, count(${modeEstimates.dampingHi}) filter (where ${natural}) as hin
+        from ${modeEstimates}
+       where ${modeEstimates.trackId} = ${params.trackId} and ${raw}
+       group by 1`);
+  }
+  const roll = rollupCondition(plan);
+  if (roll) {
+    const r = estimateRollups;
+    parts.push(sql`
+      select floor(extract(epoch from ${r.start}) / ${b}) * ${b} as bucket,
+             sum(${r.count}) as n, sum(${r.naturalCount}) as nn, sum(${r.frequencySum}) as fs, sum(${r.naturalFrequencySum}) as nfs,
+             min(${r.dampingMin}) as dmin, max(${r.dampingMax}) as dmax, sum(${r.dampingSum}) as ds,
+             sum(${r.dampingLoSum}) as los, sum(${r.dampingLoCount}) as lon, sum(${r.dampingHiSum}) as his, sum(${r.dampingHiCount}) as hin
+        from ${r}
+       where ${r.trackId} = ${params.trackId} and ${roll}
+       group by 1`);
+  }
+  if (parts.length === 0) return [];
+  const res = await db.execute<Record<string, number | null>>(sql`
+    select bucket::float8 as bucket, sum(n)::float8 as n, sum(nn)::float8 as nn, sum(fs)::float8 as fs, sum(nfs)::float8 as nfs,
+           min(dmin)::float8 as dmin, max(dmax)::float8 as dmax, sum(ds)::float8 as ds,
+           sum(los)::float8 as los, sum(lon)::float8 as lon, sum(his)::float8 as his, sum(hin)::float8 as hin
+      from (${sql.join(parts, sql` union all `)}) p
+     group by bucket
+     order by bucket`);
+  const out: BucketRow[] = [];
+  const num = (v: unknown) => (v === null || v === undefined ? 0 : Number(v));
+  for (const r of res.rows) {
+    const n = num(r.n);
+    const nn = num(r.nn);
+    const count = params.naturalOnly ? nn : n;
+    if (count === 0) continue; // only forced estimates, and those are left out
+    const ds = num(r.ds);
+    const lon = num(r.lon);
+    const hin = num(r.hin);
+    out.push({
+      start: new Date(num(r.bucket) * 1000),
+      count,
+      dampingMin: nn > 0 ? Number(r.dmin) : null,
+      dampingMean: nn > 0 ? ds / nn : null,
+      dampingMax: nn > 0 ? Number(r.dmax) : null,
+      dampingLoMean: lon > 0 ? num(r.los) / lon : null,
+      dampingHiMean: hin > 0 ? num(r.his) / hin : null,
+      frequencyMean: params.naturalOnly ? num(r.nfs) / nn : num(r.fs) / n,
+      forcedCount: params.naturalOnly ? 0 : n - nn,
+    });
+  }
+  return out;
+}
+
+/**
+ * The same buckets computed from the estimates alone (what trackEstimateBuckets did before the
+ * rollups): kept as the reference the rollup path is measured and checked against.
+ */
+export async function trackEstimateBucketsFromEstimates(
   db: DbOrTx,
   params: { trackId: number; from: Date; to: Date; bucketSeconds: number; naturalOnly?: boolean },
 ): Promise<BucketRow[]> {
@@ -98,18 +259,27 @@ export interface LatestWithStep {
   stepSeconds: number | null;
 }
 
-/** The newest estimate of each track, with the step of its scan (Watch's staleness). */
+/**
+ * The newest estimate of each track, with the step of its scan (Watch's staleness): one index probe
+ * per track (mode_estimates_track_at_idx read backwards), not a pass over every estimate.
+ */
 export async function latestByTrack(db: DbOrTx, params: { trackIds: number[] }): Promise<Map<number, LatestWithStep>> {
-  if (params.trackIds.length === 0) return new Map();
-  const rows = await db
-    .selectDistinctOn([modeEstimates.trackId], { estimate: modeEstimates, settings: analyses.settings })
-    .from(modeEstimates)
-    .leftJoin(scanWindows, eq(scanWindows.id, modeEstimates.windowId))
-    .leftJoin(analyses, eq(analyses.id, scanWindows.analysisId))
-    .where(and(inArray(modeEstimates.trackId, params.trackIds), isNotNull(modeEstimates.trackId)))
-    .orderBy(modeEstimates.trackId, desc(modeEstimates.at), desc(modeEstimates.id));
   const out = new Map<number, LatestWithStep>();
+  const rows = await Promise.all(
+    params.trackIds.map(async (trackId) => {
+      const [r] = await db
+        .select({ estimate: modeEstimates, settings: analyses.settings })
+        .from(modeEstimates)
+        .leftJoin(scanWindows, eq(scanWindows.id, modeEstimates.windowId))
+        .leftJoin(analyses, eq(analyses.id, scanWindows.analysisId))
+        .where(eq(modeEstimates.trackId, trackId))
+        .orderBy(desc(modeEstimates.at), desc(modeEstimates.id))
+        .limit(1);
+      return r;
+    }),
+  );
   for (const r of rows) {
+    if (!r) continue;
     const step = (r.settings as { stepSeconds?: unknown } | null)?.stepSeconds;
     out.set(r.estimate.trackId!, {
       estimate: r.estimate,
@@ -234,6 +404,10 @@ export async function studyRows(
     .where(
       and(
         eq(modeEstimates.trackId, params.trackId),
+        // a window estimate stands at its window's end, so these bounds only let the
+        // (track_id, at) index narrow the scan to the period
+        gte(modeEstimates.at, params.from),
+        lte(modeEstimates.at, params.to),
         gte(scanWindows.startTime, params.from),
         lte(scanWindows.endTime, params.to),
       ),

@@ -236,7 +236,7 @@ def main():
             if z1.imag <= 0:
                 continue
             fr1, d1 = pole_mode(z1, fs)
-            if not (BAND[0] <= fr1 <= BAND[1]) or not d1 < MAX_DAMP:
+            if not (BAND[0] <= fr1 <= BAND[1]) or not 0 < d1 < MAX_DAMP:
                 continue
             b1 = int(min(khi, max(klo, round(fr1 * nfft / fs)))) - klo
             if floor <= 0 or trace[b1] / floor < MIN_STRENGTH:
@@ -252,10 +252,10 @@ def main():
                 z = roots2[np.argmin(dist)] if dist.min() < 0.05 else None
             if z is None:
                 z, a_use, r_use = z1, a1, r1
-            if any(abs(t - z) < 1e-6 for t in taken):
+            if any(abs(t - z) < 1e-4 for t in taken):
                 continue
             fr, dp = pole_mode(z, fs)
-            if not (BAND[0] <= fr <= BAND[1]) or not dp < MAX_DAMP:
+            if not (BAND[0] <= fr <= BAND[1]) or not 0 < dp < MAX_DAMP:
                 continue
             if any(abs(lf - fr) < max(3 / T, 1.5 * fs / nper) and dp < FORCED_MAX_DAMP for lf, _ in lines):
                 continue

@@ -69,11 +69,15 @@ export function parseComtradeConfig(text: string, label: string, lineOffset = 0)
   };
   const num = (k: number, field: string, what: string): number => {
     if (!/^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/.test(field)) fail(k, `${what} ${quote(field)} is not a number`);
-    return Number(field);
+    const v = Number(field);
+    if (!Number.isFinite(v)) fail(k, `${what} ${quote(field)} is out of range`);
+    return v;
   };
   const int = (k: number, field: string, what: string): number => {
     if (!/^\d+$/.test(field)) fail(k, `${what} ${quote(field)} is not a whole number`);
-    return Number(field);
+    const v = Number(field);
+    if (!Number.isSafeInteger(v)) fail(k, `${what} ${quote(field)} is out of range`);
+    return v;
   };
 
   if (lines.length === 0) fail(0, 'the configuration file is empty');
@@ -124,6 +128,9 @@ export function parseComtradeConfig(text: string, label: string, lineOffset = 0)
       const secondary = num(k, f[11], `analog channel ${c} secondary ratio`);
       if (secondary === 0) fail(k, `analog channel ${c} secondary ratio is 0`);
       factor = primary / secondary;
+      if (!Number.isFinite(a * factor) || !Number.isFinite(b * factor)) {
+        fail(k, `analog channel ${c} primary/secondary ratio ${f[10]}/${f[11]} puts the multiplier out of range`);
+      }
     }
     analog.push({ index, id, phase: f[2], circuit: f[3], unit: f[4], a: a * factor, b: b * factor });
   }

@@ -9,7 +9,7 @@
 //  - FLOAT32 (2013): analog values as IEEE 754 single precision; NaN marks a missing value.
 // Digital channels are read past (Keel stores measurements, not status bits).
 import type { Readable } from 'node:stream';
-import type { ComtradeConfig } from './comtrade-cfg';
+import type { AnalogChannel, ComtradeConfig } from './comtrade-cfg';
 import { csvRecords } from './csv-stream';
 import { FileRefusedError } from './errors';
 import type { SourceRow } from './source';
@@ -46,6 +46,16 @@ export function binaryWhere(opts: DatOptions): (record: number) => string {
 
 export function asciiWhere(opts: DatOptions): (line: number) => string {
   return (line) => `${opts.label} line ${line}`;
+}
+
+/** value = a · raw + b (standard); a huge multiplier or raw value overflows, which no PMU quantity does. */
+function scaled(ch: AnalogChannel, raw: number, loc: () => string): number {
+  if (Number.isNaN(raw)) return NaN; // an empty ASCII cell: a dropout
+  const v = ch.a * raw + ch.b;
+  if (!Number.isFinite(v)) {
+    throw new FileRefusedError(loc(), `analog channel ${ch.index} ${quote(ch.id)}: raw value ${raw} scaled by a = ${ch.a}, b = ${ch.b} is out of range`);
+  }
+  return v;
 }
 
 function timeOf(cfg: ComtradeConfig, sample: number, timestamp: number | null): number {
@@ -121,7 +131,7 @@ export async function* asciiDatRows(input: Readable, opts: DatOptions, select: n
         const cell = fields[2 + select[k]];
         const raw = parseCell(cell);
         if (raw === undefined) throw new FileRefusedError(loc(), `analog channel ${ch.index} ${quote(ch.id)}: ${numberProblem(cell)}`);
-        values[k] = raw === ASCII_MISSING ? NaN : ch.a * raw + ch.b;
+        values[k] = raw === ASCII_MISSING ? NaN : scaled(ch, raw, loc);
       }
       yield { line, time: timeOf(cfg, sample, ts), timeText: fields[1] === '' ? `sample ${sample}` : `${fields[1]} µs`, values };
     }
@@ -169,16 +179,16 @@ export async function* binaryDatRows(
       let raw: number;
       if (cfg.fileType === 'BINARY') {
         raw = buf.readInt16LE(o);
-        values[k] = raw === -0x8000 ? NaN : chans[k].a * raw + chans[k].b;
+        values[k] = raw === -0x8000 ? NaN : scaled(chans[k], raw, loc);
       } else if (cfg.fileType === 'BINARY32') {
         raw = buf.readInt32LE(o);
-        values[k] = raw === -0x80000000 ? NaN : chans[k].a * raw + chans[k].b;
+        values[k] = raw === -0x80000000 ? NaN : scaled(chans[k], raw, loc);
       } else {
         raw = buf.readFloatLE(o);
         if (raw === Infinity || raw === -Infinity) {
           throw new FileRefusedError(loc(), `analog channel ${chans[k].index} ${quote(chans[k].id)}: value is infinite`);
         }
-        values[k] = Number.isNaN(raw) ? NaN : chans[k].a * raw + chans[k].b;
+        values[k] = Number.isNaN(raw) ? NaN : scaled(chans[k], raw, loc);
       }
     }
     return { line: n, time: timeOf(cfg, sample, ts), timeText: ts === null ? `sample ${sample}` : `${ts} µs`, values };

@@ -47,16 +47,22 @@ export async function openComtradeSource(files: ComtradePair): Promise<IngestSou
     throw new FileRefusedError(binary ? `${files.datName} record 1 (byte 0)` : `${files.datName} line 1`, 'the data file is empty');
   }
   if (!binary) await checkTextEncoding(files.datPath, files.datName);
-  const file = fs.createReadStream(files.datPath, { highWaterMark: 256 * 1024 });
+  // The .dat is opened only when its rows are read: a stream opened here and closed at once (the
+  // columns refused) would open the file after the caller deleted it, and its ENOENT error event
+  // would have no listener left.
+  let file: fs.ReadStream | null = null;
   return {
     format: 'comtrade',
     recordFormat: binary ? 'comtrade-binary' : 'comtrade-ascii',
     ...describe(cfg, files.cfgName),
     where: binary ? binaryWhere(opts) : asciiWhere(opts),
     totalBytes: size + cfgStat.size,
-    bytesRead: () => cfgStat.size + file.bytesRead,
-    close: () => file.destroy(),
-    rows: (select) => (binary ? binaryDatRows(file, opts, select) : asciiDatRows(file, opts, select)),
+    bytesRead: () => cfgStat.size + (file?.bytesRead ?? 0),
+    close: () => file?.destroy(),
+    rows: (select) => {
+      file = fs.createReadStream(files.datPath, { highWaterMark: 256 * 1024 });
+      return binary ? binaryDatRows(file, opts, select) : asciiDatRows(file, opts, select);
+    },
   };
 }
 

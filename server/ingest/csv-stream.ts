@@ -1,7 +1,7 @@
 // The one CSV tokenizer of the ingest path: csv-parse's streaming API (npm csv-parse), fed by a
 // file stream, yielding one record at a time with the line on which it ends. Used for CSV uploads
 // and for the ASCII .dat of COMTRADE (whose rows are comma-separated too).
-import { parse, type CsvError, type InfoRecord, type Options } from 'csv-parse';
+import { CsvError, parse, type InfoRecord, type Options } from 'csv-parse';
 import { pipeline, type Readable } from 'node:stream';
 import { FileRefusedError } from './errors';
 
@@ -84,7 +84,9 @@ export function csvRecords(input: Readable, opts: { lineOffset?: number; where: 
 
 function translateCsvError(err: unknown, lineOffset: number, lastLine: number, where: (line: number) => string): Error {
   const e = err as Partial<CsvError> & { lines?: number };
-  if (!e || typeof e.code !== 'string' || !e.code.startsWith('CSV_')) return err as Error;
+  // csv-parse's codes mostly start with CSV_, but not all (INVALID_OPENING_QUOTE): any CsvError
+  // is a fault of the file, never of the server.
+  if (!e || typeof e.code !== 'string' || !(err instanceof CsvError || e.code.startsWith('CSV_'))) return err as Error;
   const line = (e.lines ?? 0) + lineOffset;
   const loc = where(Math.max(1, line));
   switch (e.code) {
@@ -98,6 +100,8 @@ function translateCsvError(err: unknown, lineOffset: number, lastLine: number, w
     case 'CSV_INVALID_CLOSING_QUOTE':
     case 'CSV_NON_TRIMABLE_CHAR_AFTER_CLOSING_QUOTE':
       return new FileRefusedError(loc, 'a closing quote is followed by other characters instead of a comma');
+    case 'INVALID_OPENING_QUOTE':
+      return new FileRefusedError(loc, 'a quote in the middle of a field (quote the whole field, or remove the quote)');
     case 'CSV_MAX_RECORD_SIZE':
       return new FileRefusedError(
         loc,

@@ -170,7 +170,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
               if (seen[seen.length - 1] !== v) seen.push(v);
               return v;
             },
-            { timeout: 90_000, intervals: [100] },
+            { timeout: 90_000, interval: 100 },
           )
           .toBe(100);
         expect(seen.every((v, i) => i === 0 || v >= seen[i - 1]), `progress went backwards: ${seen.join(', ')}`).toBe(true);
@@ -214,7 +214,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const scanId = Number(/\/scans\/(\d+)$/.exec(page.url())![1]);
         await page.getByRole('heading', { name: `Ambient scan ${scanId}`, level: 1 }).waitFor();
         const scanBar = page.getByRole('progressbar', { name: `Ambient scan ${scanId}` });
-        await expect.poll(async () => scanBar.getAttribute('aria-valuetext'), { timeout: 120_000, intervals: [250] }).toMatch(/^100 %: Done: \d+ windows$/);
+        await expect.poll(async () => scanBar.getAttribute('aria-valuetext'), { timeout: 120_000, interval: 250 }).toMatch(/^100 %: Done: \d+ windows$/);
         // 20-minute windows stepped by 2 minutes over 25 minutes: 3 windows.
         expect(await scanBar.getAttribute('aria-valuetext')).toBe('100 %: Done: 3 windows');
         // The stored settings are what ran: the changed step, the default window.

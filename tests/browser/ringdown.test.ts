@@ -11,21 +11,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { writeCsv } from '../../modal/formats/csv';
 import { buildTarrowModel, simulateRingdown, type RingdownSimulation } from '../../modal/simulator';
 import { FIT_CSV_COLUMNS } from '../../shared/api/fits';
+import { LIGHT_CHANNELS } from '../../scripts/seed-demo';
 import { openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
 import { startStack, type Stack } from '../helpers/stack';
 
 const PASSWORD = 'tarrow-demo-2026';
-// Angles and flows of every PMU (the channels the tracks and corridors use).
-const CHANNELS = [
-  'greyscar.angle',
-  'kestrel-falls.angle',
-  'moorgate.angle',
-  'moorgate.mw',
-  'tarrow-central.angle',
-  'saltreach-bay.angle',
-  'eastfell-ridge.angle',
-  'windlow.angle',
-];
+// Angles and flows of every PMU (the channels the tracks and corridors use), as the fit API test.
+const CHANNELS = LIGHT_CHANNELS;
 const RECON_COLOR = '#0F6E6A';
 
 let stack: Stack;
