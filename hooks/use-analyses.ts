@@ -108,6 +108,11 @@ export function useAnalysisEvents(onEnd?: (e: AnalysisProgressEvent) => void): v
   end.current = onEnd;
   useEffect(() => {
     const l: Listener = (e) => {
+      // An analysis no list has seen yet (just queued, perhaps by the ingest's own scan): refetch the lists.
+      const known = qc
+        .getQueriesData<{ analyses: AnalysisSummary[] }>({ queryKey: analysisKeys.lists() })
+        .some(([, d]) => d?.analyses.some((a) => a.id === e.analysisId));
+      if (!known) void qc.invalidateQueries({ queryKey: analysisKeys.lists() });
       applyProgressEvent(qc, e);
       if (e.status === 'done' || e.status === 'failed') {
         void qc.invalidateQueries({ queryKey: analysisKeys.detail(e.analysisId) });

@@ -52,11 +52,11 @@
 // marked forced too. Limitation: a natural mode damped well under 1 % has a decay time comparable
 // to a segment and can look coherent (on known-answer data: 2 % of windows at 1 %, 5 % at 0.7 %).
 import { ModalInputError } from './errors';
-import { arRoots, levinsonDurbin, poleToMode, refineArRoot } from './ar';
+import { arRoots, levinsonDurbin, modifiedYuleWalker, poleToMode, refineArRoot } from './ar';
 import { FirDecimator, designDecimator } from './ambient-filters';
 import { finalizeSummary, mergeSummaries, summarizeBlock, type QualitySummary } from './ambient-quality';
 import { jackknifeSe, medianOf, studentTQuantile } from './ambient-stats';
-import { complexEigenvalues, lstsq, svd, type Complex } from './linalg';
+import { complexEigenvalues, leadingGeneralizedEigenvector, lstsq, lstsqArrays, svd, type Complex } from './linalg';
 import { Matrix } from 'ml-matrix';
 import { RealDft, hannWindow } from './spectral';
 import type { ResolvedAmbientOptions } from './ambient-options';
@@ -286,6 +286,30 @@ interface LineInfo {
   /** Band-bin index of the segment spectra nearest the line. */
   bin: number;
 }
+
+/** Result of the modal-filter stage 2 for one candidate. */
+interface ModalFilterFit {
+  z: Complex;
+  reps: ((z: Complex) => Complex | null)[];
+  /** Filter weight per analysis channel (on the channel divided by its standard deviation). */
+  w: Float64Array;
+  /** Welch density of the filter output at a band bin over its median across the band. */
+  strengthAt: (bin: number) => number;
+  /** The filter output over the window, centred. */
+  y: Float64Array;
+}
+
+/** Modified Yule-Walker of the modal-filter output: AR order, first equation lag, equations. */
+const MYW_ORDER = 3;
+const MYW_FIRST_LAG = 3;
+const mywOrder = () => ((globalThis as Record<string, unknown>).__mywP as number) ?? MYW_ORDER;
+const MYW_EQUATIONS = 9;
+/** Lags of the cross-correlations fitted for residue mode shapes (12 s at 5 samples/s). */
+const RESIDUE_LAGS = 60;
+const RESIDUE_OVERLAP = () => ((globalThis as Record<string, unknown>).__ovl as number) ?? 2;
+const RESIDUE_SHAPES = () => (globalThis as Record<string, unknown>).__noResidue === undefined;
+/** Diagonal loading of the correlation matrix in the modal filter (relative to unit variances). */
+const MODAL_FILTER_LOADING = 1e-3;
 
 /** Screening threshold of the periodogram/Welch ratio Λ for line candidates. */
 const FORCED_SCREEN = 12;
@@ -1031,6 +1055,10 @@ export class AmbientEngine {
     // a line removed from the autocorrelation can leave a residual pole next to it
     const lineGuardHz = Math.max(3 / T, (1.5 * o.analysisRate) / o.segmentSamples);
     const taken: Complex[] = [];
+    let R0: Float64Array | null = null;
+    const natural: AmbientMode[] = [];
+    const filterOf = new Map<Complex, ModalFilterFit>();
+    const poleOf = new Map<AmbientMode, Complex>();
     for (const z1 of stage1.poles) {
       if (!(z1.im > 0)) continue;
       const m1 = poleToMode(z1, fsA);
@@ -1038,19 +1066,34 @@ export class AmbientEngine {
       // a stable system's ambient response decays; a non-decaying pole is a line (searched above)
       if (!(m1.dampingPercent > 0 && m1.dampingPercent < o.maxDampingPercent)) continue;
       const bin1 = Math.min(this.kHi, Math.max(this.kLo, Math.round((m1.frequencyHz * this.nfft) / fsA))) - this.kLo;
-      // poles on the spectral floor model noise, not a mode: not reported (and not worth refitting)
-      if (strengthAt(bin1) < o.minStrength) continue;
-      // stage 2: refit with channels weighted by how much of their variance sits at this mode
-      const weights = this.modeWeights(segs, bin1, ac);
       let z = z1;
-      let fit = stage1;
-      if (weights) {
-        const fit2 = this.fitModel(this.pooled(ac, lines, weights));
-        if (typeof fit2 !== 'string') {
-          const z2 = fit2.locate(z1);
-          if (z2) {
-            z = z2;
-            fit = fit2;
+      let repPoles = stage1.reps;
+      let filter: ModalFilterFit | null = null;
+      if (o.method === 'yule-walker') {
+        // stage 2 (Yule-Walker): modal filter + modified Yule-Walker (see the file header); poles
+        // on the floor of the filter output's spectrum model noise, not a mode
+        R0 ??= this.channelCorrelation(ws, ac);
+        filter = this.modalFilterFit(ws, segs, bin1, z1, ac, lines, R0);
+        if (filter) {
+          if (filter.strengthAt(bin1) < o.minStrength) continue;
+          z = filter.z;
+          repPoles = filter.reps;
+        }
+      }
+      if (!filter) {
+        // poles on the spectral floor model noise, not a mode: not reported (and not worth refitting)
+        if (strengthAt(bin1) < o.minStrength) continue;
+        // stage 2 (pencil, or when the modal filter finds no pole): refit with channels weighted
+        // by how much of their variance sits at this mode
+        const weights = this.modeWeights(segs, bin1, ac);
+        if (weights) {
+          const fit2 = this.fitModel(this.pooled(ac, lines, weights));
+          if (typeof fit2 !== 'string') {
+            const z2 = fit2.locate(z1);
+            if (z2) {
+              z = z2;
+              repPoles = fit2.reps;
+            }
           }
         }
       }
@@ -1061,7 +1104,6 @@ export class AmbientEngine {
       if (!(m.dampingPercent > 0 && m.dampingPercent < o.maxDampingPercent)) continue;
       if (lines.some((ln) => Math.abs(ln.frequencyHz - m.frequencyHz) < lineGuardHz && m.dampingPercent < o.forced.maxDampingPercent)) continue;
       taken.push(z);
-      const repPoles = fit.reps;
       const fr: number[] = [];
       const dr: number[] = [];
       for (const rp of repPoles) {
@@ -1084,10 +1126,11 @@ export class AmbientEngine {
         dCi = [0, o.maxDampingPercent];
       }
       const bin = Math.min(this.kHi, Math.max(this.kLo, Math.round((m.frequencyHz * this.nfft) / fsA))) - this.kLo;
-      const strength = strengthAt(bin);
+      const strength = filter ? filter.strengthAt(bin) : strengthAt(bin);
       if (strength < o.minStrength) continue;
-      const sh = this.shapeAndForced(segs, segIdx, bin, m.frequencyHz, m.dampingPercent, ac.active, ac.sd, ws);
-      modes.push({
+      const sh = this.shapeAndForced(segs, segIdx, bin, m.frequencyHz, m.dampingPercent, ac.active, ac.sd, ws, filter?.w ?? null);
+      if (filter) filterOf.set(z, filter);
+      const mode: AmbientMode = {
         ...m,
         dampingCi: dCi,
         frequencyCi: fCi,
@@ -1096,6 +1139,33 @@ export class AmbientEngine {
         shape: sh.shape,
         strength,
         ...(sh.coherence !== null ? { coherence: sh.coherence } : {}),
+      };
+      natural.push(mode);
+      poleOf.set(mode, z);
+    }
+    // Split peaks: several stage-1 poles of one broad peak lead, through their modal filters, to
+    // nearly the same mode. Poles closer than the larger half-power half-width (σ/2π Hz) are one
+    // mode; the estimate standing highest above its filter's floor stays.
+    natural.sort((a, b) => b.strength - a.strength);
+    const hw = (x: AmbientMode) => -x.sigma / (2 * Math.PI);
+    for (const cand of natural) {
+      if (!modes.some((k) => Math.abs(k.frequencyHz - cand.frequencyHz) < Math.max(hw(k), hw(cand)))) modes.push(cand);
+    }
+    if (RESIDUE_SHAPES()) {
+      // residue shapes: exponentials of every reported mode, plus the stage-1 poles that stand for
+      // no reported mode (out of band, on the floor), so each mode's coefficient is its own
+      const own = modes.map((k) => poleOf.get(k)!);
+      const others = stage1.poles.filter((p) => {
+        if (p.im < 0) return false;
+        if (p.im === 0) return true;
+        const pm = poleToMode(p, fsA);
+        return !modes.some((k) => Math.abs(k.frequencyHz - pm.frequencyHz) < RESIDUE_OVERLAP() * (hw(k) + -pm.sigma / (2 * Math.PI)));
+      });
+      modes.forEach((k, i) => {
+        const f = filterOf.get(own[i]);
+        if (!f) return;
+        const res = this.residueShape(ws, ac, f.y, [own[i], ...own.filter((_, j) => j !== i), ...others]);
+        if (res) k.shape = res;
       });
     }
     for (const ln of lines) {
@@ -1217,6 +1287,261 @@ export class AmbientEngine {
     return tot > 0 ? w : null;
   }
 
+  /**
+   * Correlation matrix of the analysis channels over the window (centred, each channel divided by
+   * its window standard deviation; inactive channels get a unit diagonal and no coupling).
+   */
+  private channelCorrelation(ws: number, ac: WindowAcf): Float64Array {
+    const C = this.nCh;
+    const W = this.o.windowSamples;
+    const R = new Float64Array(C * C);
+    const xs: Float64Array[] = [];
+    for (let c = 0; c < C; c++) {
+      const s = this.series[c];
+      xs.push(s.data.subarray(ws - s.base, ws - s.base + W));
+    }
+    for (let c = 0; c < C; c++) {
+      R[c * C + c] = 1;
+      if (!ac.active[c]) continue;
+      const xc = xs[c];
+      const mc = ac.mean[c];
+      for (let d = 0; d < c; d++) {
+        if (!ac.active[d]) continue;
+        const xd = xs[d];
+        const md = ac.mean[d];
+        let acc = 0;
+        for (let t = 0; t < W; t++) acc += (xc[t] - mc) * (xd[t] - md);
+        const v = acc / (W * ac.sd[c] * ac.sd[d]);
+        R[c * C + d] = v;
+        R[d * C + c] = v;
+      }
+    }
+    return R;
+  }
+
+  /**
+   * Stage 2 of the Yule-Walker method for one candidate: the modal filter — the channel
+   * combination y = Σ w_c·x_c/σ_c whose variance is most concentrated at the candidate's bin
+   * (w maximises wᵀ·Re S(f)·w / wᵀ·R₀·w, S the cross-spectral matrix, R₀ the correlation matrix;
+   * other modes, which carry most of R₀, are nulled in y) — then a low-order modified Yule-Walker
+   * fit on y's autocovariance, lags MYW_FIRST_LAG… (modal/ar.ts modifiedYuleWalker). Jackknife
+   * replicates refit y's autocovariance without each group's lag products, with the same filter.
+   * Null when the fit has no pole near the candidate.
+   */
+  private modalFilterFit(
+    ws: number,
+    segs: SegmentData[],
+    bin: number,
+    z1: Complex,
+    ac: WindowAcf,
+    lines: LineInfo[],
+    R0: Float64Array,
+  ): ModalFilterFit | null {
+    const o = this.o;
+    const C = this.nCh;
+    const nb = this.nb;
+    const W = o.windowSamples;
+    const K = o.jackknifeGroups;
+    const G = o.groupSamples;
+    const chans: number[] = [];
+    for (let c = 0; c < C; c++) if (ac.active[c]) chans.push(c);
+    const n = chans.length;
+    // Re S at the bin (normalised channels), summed over segments; R₀ with a little diagonal loading
+    const A = new Float64Array(n * n);
+    for (const seg of segs) {
+      for (let i = 0; i < n; i++) {
+        const ri = seg.re[chans[i] * nb + bin] / ac.sd[chans[i]];
+        const ii = seg.im[chans[i] * nb + bin] / ac.sd[chans[i]];
+        for (let j = 0; j <= i; j++) {
+          const rj = seg.re[chans[j] * nb + bin] / ac.sd[chans[j]];
+          const ij = seg.im[chans[j] * nb + bin] / ac.sd[chans[j]];
+          A[i * n + j] += ri * rj + ii * ij;
+        }
+      }
+    }
+    let traceA = 0;
+    for (let i = 0; i < n; i++) traceA += A[i * n + i];
+    if (!(traceA > 0)) return null;
+    for (let i = 0; i < n; i++) for (let j = 0; j < i; j++) A[j * n + i] = A[i * n + j];
+    const B = new Float64Array(n * n);
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) B[i * n + j] = R0[chans[i] * C + chans[j]];
+      B[i * n + i] += MODAL_FILTER_LOADING;
+    }
+    let gen: { lambda: number; w: Float64Array };
+    try {
+      gen = leadingGeneralizedEigenvector(A, B, n);
+    } catch {
+      return null;
+    }
+    const w = new Float64Array(C);
+    chans.forEach((c, i) => (w[c] = gen.w[i]));
+    // the filter output's Welch spectrum over the band, for the peak-to-floor strength
+    const spec = new Float64Array(nb);
+    for (const seg of segs) {
+      for (let j = 0; j < nb; j++) {
+        let yr = 0;
+        let yi = 0;
+        for (const c of chans) {
+          const g = w[c] / ac.sd[c];
+          yr += g * seg.re[c * nb + j];
+          yi += g * seg.im[c * nb + j];
+        }
+        spec[j] += yr * yr + yi * yi;
+      }
+    }
+    const specFloor = medianOf(spec);
+    const strengthAt = (j: number): number => (specFloor > 0 ? spec[j] / specFloor : 0);
+    // y over the window, centred
+    const y = new Float64Array(W);
+    for (const c of chans) {
+      const s = this.series[c];
+      const x = s.data;
+      const off = ws - s.base;
+      const g = w[c] / ac.sd[c];
+      const m = ac.mean[c];
+      for (let t = 0; t < W; t++) y[t] += g * (x[off + t] - m);
+    }
+    const L = MYW_FIRST_LAG + this.mywEquations();
+    const groups = Array.from({ length: K }, () => new Float64Array(L));
+    for (let g = 0; g < K; g++) {
+      const a = g * G;
+      const b = a + G;
+      const acc = groups[g];
+      for (let k = 0; k < L; k++) {
+        let sum = 0;
+        for (let t = Math.max(a, k); t < b; t++) sum += y[t] * y[t - k];
+        acc[k] = sum;
+      }
+    }
+    const full = new Float64Array(L);
+    for (const acc of groups) for (let k = 0; k < L; k++) full[k] += acc[k];
+    // a detected line adds (|a_y|²/2)·cos(ωk) per sample pair, a_y its complex amplitude in y
+    const lineAcf = new Float64Array(L);
+    for (const ln of lines) {
+      let ar = 0;
+      let ai = 0;
+      for (const c of chans) {
+        ar += (w[c] * ln.amp[c].re) / ac.sd[c];
+        ai += (w[c] * ln.amp[c].im) / ac.sd[c];
+      }
+      const pw = 0.5 * (ar * ar + ai * ai);
+      const om = (2 * Math.PI * ln.frequencyHz) / o.analysisRate;
+      for (let k = 0; k < L; k++) lineAcf[k] += pw * Math.cos(om * k);
+    }
+    const acfOf = (sum: Float64Array, count: number): Float64Array => {
+      const r = new Float64Array(L);
+      for (let k = 0; k < L; k++) r[k] = sum[k] / count - (lineAcf[k] * (count - k)) / count;
+      return r;
+    };
+    let a: Float64Array;
+    try {
+      a = modifiedYuleWalker(acfOf(full, W), mywOrder(), MYW_FIRST_LAG, this.mywEquations());
+    } catch {
+      return null;
+    }
+    const fsA = o.analysisRate;
+    let z: Complex | null = null;
+    let best = Infinity;
+    const f1 = poleToMode(z1, fsA).frequencyHz;
+    for (const r of arRoots(a)) {
+      if (!(r.im > 0)) continue;
+      const mm = poleToMode(r, fsA);
+      if (!(mm.dampingPercent > 0 && mm.dampingPercent < o.maxDampingPercent)) continue;
+      const d = Math.abs(mm.frequencyHz - f1);
+      if (d < best) {
+        best = d;
+        z = r;
+      }
+    }
+    if (!z) return null;
+    const reps = groups.map((acc) => {
+      const rep = new Float64Array(L);
+      for (let k = 0; k < L; k++) rep[k] = full[k] - acc[k];
+      let ra: Float64Array | null;
+      try {
+        ra = modifiedYuleWalker(acfOf(rep, W - G), mywOrder(), MYW_FIRST_LAG, this.mywEquations());
+      } catch {
+        ra = null;
+      }
+      return (zz: Complex) => (ra ? refineArRoot(ra, zz) : null);
+    });
+    return { z, reps, w, strengthAt, y };
+  }
+
+  /**
+   * Mode shape from the residues of the channels' cross-correlation with the modal-filter output:
+   * for τ ≥ 0, E[x(t+τ)·y(t)] = Σ_k (C·v_k)·b_k·e^{λ_k τ} (output covariance of a linear system
+   * driven by white noise, R(τ) = C·e^{Aτ}·P·Cᵀ), so the coefficient of the mode's own exponential
+   * is proportional to its eigenvector C·v in every channel, whatever the other modes and the
+   * correlation of their excitation. The cross-correlations at lags 1…RESIDUE_LAGS are fitted by
+   * least squares on the exponentials of the mode's pole and of the window's stage-1 poles (those
+   * within the mode's half-power width stand for the same mode and are left out).
+   */
+  private residueShape(ws: number, ac: WindowAcf, y: Float64Array, basis: Complex[]): ShapeEntry[] | null {
+    const o = this.o;
+    const W = o.windowSamples;
+    const Lx = RESIDUE_LAGS;
+    const poles = basis.filter((p, i) => i === 0 || (Math.hypot(p.re, p.im) > 0.05 && Math.hypot(p.re, p.im) < 1.2));
+    // basis columns: Re z^τ, Im z^τ per complex pole (first the mode's own), z^τ per real pole
+    const cols: Float64Array[] = [];
+    for (const p of poles) {
+      const re = new Float64Array(Lx);
+      const im = new Float64Array(Lx);
+      let pr = p.re;
+      let pi = p.im;
+      for (let t = 0; t < Lx; t++) {
+        re[t] = pr;
+        im[t] = pi;
+        const nr = pr * p.re - pi * p.im;
+        pi = pr * p.im + pi * p.re;
+        pr = nr;
+      }
+      cols.push(re);
+      if (p.im > 0) cols.push(im);
+    }
+    const nc = cols.length;
+    if (nc >= Lx) return null;
+    const chans: number[] = [];
+    for (let c = 0; c < this.nCh; c++) if (ac.active[c]) chans.push(c);
+    const k = chans.length;
+    const A = new Float64Array(Lx * nc);
+    for (let t = 0; t < Lx; t++) for (let j = 0; j < nc; j++) A[t * nc + j] = cols[j][t];
+    const b = new Float64Array(Lx * k);
+    chans.forEach((c, i) => {
+      const s = this.series[c];
+      const x = s.data;
+      const off = ws - s.base;
+      const mc = ac.mean[c];
+      for (let tau = 1; tau <= Lx; tau++) {
+        let acc = 0;
+        for (let t = 0; t + tau < W; t++) acc += (x[off + t + tau] - mc) * y[t];
+        b[(tau - 1) * k + i] = acc / W;
+      }
+    });
+    let sol: Matrix;
+    try {
+      sol = lstsqArrays(A, Lx, nc, b, k, 1e-10).x;
+    } catch {
+      return null;
+    }
+    // α·Re z^τ + β·Im z^τ = Re((α − iβ)·z^τ)
+    const resp = chans.map((c, i) => {
+      const re = sol.get(0, i);
+      const im = -sol.get(1, i);
+      return { re, im, part: Math.hypot(re, im) / ac.sd[c] };
+    });
+    return shapeEntries(
+      chans.map((c) => o.channels[c]),
+      resp,
+      o.shapeReference,
+    );
+  }
+
+  private mywEquations(): number {
+    return ((globalThis as Record<string, unknown>).__mywEq as number) ?? MYW_EQUATIONS;
+  }
+
   /** Normalised spectral trace per band bin: Σ over active channels and segments of |X/σ|². */
   private bandTrace(segs: SegmentData[], active: boolean[], sd: Float64Array): Float64Array {
     const nb = this.nb;
@@ -1243,6 +1568,7 @@ export class AmbientEngine {
     active: boolean[],
     sd: Float64Array,
     ws: number,
+    filterW: Float64Array | null = null,
   ): { shape: ShapeEntry[]; forced: boolean; trace: number; coherence: number | null } {
     const o = this.o;
     const nb = this.nb;
@@ -1260,7 +1586,8 @@ export class AmbientEngine {
         vi[s * n + i] = segs[s].im[c * nb + bin] / sd[c];
       }
     }
-    const { ur, ui, trace } = principalVector(vr, vi, M, n);
+    let { ur, ui, trace } = principalVector(vr, vi, M, n);
+    if (filterW) ({ ur, ui } = filterCrossSpectrum(vr, vi, M, n, chans.map((c) => filterW[c])));
     const shape = shapeEntries(
       chans.map((c) => this.o.channels[c]),
       Array.from(chans, (c, i) => ({ re: ur[i] * sd[c], im: ui[i] * sd[c], part: Math.hypot(ur[i], ui[i]) })),
@@ -1393,6 +1720,44 @@ export function principalVector(
     ui[i] /= norm;
   }
   return { ur, ui, lambda: lambda / Math.max(1, M), trace };
+}
+
+/**
+ * Mode shape against a modal filter: the cross-spectrum of every channel with the filter output
+ * y = Σ w_i·v_i at the bin, S_iy = (1/M)·Σ_s v_{s,i}·conj(y_s) (normalised channels). Modes the
+ * filter nulls drop out of it, so a strong neighbouring mode's spectral tail does not bend the shape
+ * of a weaker one. Returned as a unit vector like principalVector's.
+ */
+export function filterCrossSpectrum(
+  vr: Float64Array,
+  vi: Float64Array,
+  M: number,
+  n: number,
+  w: ArrayLike<number>,
+): { ur: Float64Array; ui: Float64Array } {
+  const ur = new Float64Array(n);
+  const ui = new Float64Array(n);
+  for (let s = 0; s < M; s++) {
+    let yr = 0;
+    let yi = 0;
+    for (let i = 0; i < n; i++) {
+      yr += w[i] * vr[s * n + i];
+      yi += w[i] * vi[s * n + i];
+    }
+    for (let i = 0; i < n; i++) {
+      // v·conj(y)
+      ur[i] += vr[s * n + i] * yr + vi[s * n + i] * yi;
+      ui[i] += vi[s * n + i] * yr - vr[s * n + i] * yi;
+    }
+  }
+  let norm = 0;
+  for (let i = 0; i < n; i++) norm += ur[i] * ur[i] + ui[i] * ui[i];
+  norm = Math.sqrt(norm) || 1;
+  for (let i = 0; i < n; i++) {
+    ur[i] /= norm;
+    ui[i] /= norm;
+  }
+  return { ur, ui };
 }
 
 function unitGroup(name: string): string {

@@ -470,6 +470,45 @@ export function refineArRoot(a: ArrayLike<number>, z0: Complex, maxIter = 30, ma
   return null;
 }
 
+/**
+ * Modified (high-lag) Yule-Walker: the AR part a = [1, a1, …, ap] of an ARMA(p, q) process from its
+ * autocovariance, by least squares on the extended Yule-Walker equations
+ *     r[k] + a1·r[k−1] + … + ap·r[k−p] = 0,   k = firstLag … firstLag + equations − 1,
+ * which hold exactly for k > q (textbook: Stoica & Moses, Spectral Analysis of Signals, 2005, §3.7;
+ * paper: Pierre, Trudnowski & Donnelly, IEEE Trans. Power Systems 12(3), 1997, for ambient modes).
+ * Lags at or below the MA order — where white measurement noise and the moving-average part of a
+ * sampled mode sit — never enter, so a low order p describes a mode without the surplus poles an
+ * all-pole fit needs for them. Same solution as numpy.linalg.lstsq on the same equations.
+ */
+export function modifiedYuleWalker(r: ArrayLike<number>, order: number, firstLag: number, equations: number): Float64Array {
+  checkOrder(order, 'modifiedYuleWalker');
+  if (!Number.isInteger(firstLag) || firstLag < 1) {
+    throw new ModalInputError(`modifiedYuleWalker: firstLag must be a positive integer, got ${firstLag}`);
+  }
+  if (!Number.isInteger(equations) || equations < order) {
+    throw new ModalInputError(`modifiedYuleWalker: equations must be an integer ≥ order ${order}, got ${equations}`);
+  }
+  const last = firstLag + equations - 1;
+  if (r.length < last + 1) {
+    throw new ModalInputError(`modifiedYuleWalker: the equations need autocovariances up to lag ${last}, got ${r.length - 1}`);
+  }
+  for (let k = 0; k <= last; k++) {
+    if (!Number.isFinite(r[k])) throw new ModalInputError(`modifiedYuleWalker: r[${k}] is ${r[k]}; every lag must be finite`);
+  }
+  const A = new Float64Array(equations * order);
+  const b = new Float64Array(equations);
+  for (let e = 0; e < equations; e++) {
+    const k = firstLag + e;
+    for (let j = 1; j <= order; j++) A[e * order + j - 1] = r[Math.abs(k - j)];
+    b[e] = -r[k];
+  }
+  const x = lstsqArrays(A, equations, order, b, 1, 2.220446049250313e-16 * equations).x;
+  const a = new Float64Array(order + 1);
+  a[0] = 1;
+  for (let j = 0; j < order; j++) a[j + 1] = x.get(j, 0);
+  return a;
+}
+
 /** AR power spectral density σ²/(fs·|A(e^{iω/fs})|²) (two-sided density per Hz) at frequencies f. */
 export function arSpectrum(model: ArModel, fs: number, frequencies: ArrayLike<number>): Float64Array {
   const out = new Float64Array(frequencies.length);

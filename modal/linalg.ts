@@ -431,3 +431,79 @@ export function cexp(z: Complex): Complex {
   const r = Math.exp(z.re);
   return { re: r * Math.cos(z.im), im: r * Math.sin(z.im) };
 }
+
+/**
+ * Leading eigenpair of the symmetric-definite pencil A·w = λ·B·w (A symmetric, B symmetric
+ * positive definite; row-major n×n): the w maximising the Rayleigh quotient wᵀAw / wᵀBw.
+ * Cholesky B = L·Lᵀ, the symmetric eigenproblem of L⁻¹·A·L⁻ᵀ, back-substitution w = L⁻ᵀ·u
+ * (textbook: Golub & Van Loan, Matrix Computations, §8.7). w is scaled so that wᵀBw = 1.
+ * Throws ModalInputError when B is not positive definite or an entry is not finite.
+ */
+export function leadingGeneralizedEigenvector(A: Float64Array, B: Float64Array, n: number): { lambda: number; w: Float64Array } {
+  if (!allFinite(A, n * n) || !allFinite(B, n * n)) {
+    throw new ModalInputError('leadingGeneralizedEigenvector: every matrix entry must be a finite number');
+  }
+  // Cholesky, lower triangle, row-major
+  const L = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j <= i; j++) {
+      let s = B[i * n + j];
+      for (let k = 0; k < j; k++) s -= L[i * n + k] * L[j * n + k];
+      if (i === j) {
+        if (!(s > 0)) throw new ModalInputError('leadingGeneralizedEigenvector: B is not positive definite');
+        L[i * n + i] = Math.sqrt(s);
+      } else {
+        L[i * n + j] = s / L[j * n + j];
+      }
+    }
+  }
+  // C = L⁻¹ A L⁻ᵀ: first X = L⁻¹ A (forward substitution per column), then C = X L⁻ᵀ = (L⁻¹ Xᵀ)ᵀ
+  const X = new Float64Array(n * n);
+  for (let c = 0; c < n; c++) {
+    for (let i = 0; i < n; i++) {
+      let s = A[i * n + c];
+      for (let k = 0; k < i; k++) s -= L[i * n + k] * X[k * n + c];
+      X[i * n + c] = s / L[i * n + i];
+    }
+  }
+  const C = new Matrix(n, n);
+  for (let r = 0; r < n; r++) {
+    // row r of C = L⁻¹ applied to row r of X (as a column)
+    const y = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      let s = X[r * n + i];
+      for (let k = 0; k < i; k++) s -= L[i * n + k] * y[k];
+      y[i] = s / L[i * n + i];
+    }
+    for (let i = 0; i < n; i++) C.set(r, i, y[i]);
+  }
+  // symmetrise against rounding before the symmetric solver
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < i; j++) {
+      const v = 0.5 * (C.get(i, j) + C.get(j, i));
+      C.set(i, j, v);
+      C.set(j, i, v);
+    }
+  }
+  const evd = new EigenvalueDecomposition(C, { assumeSymmetric: true });
+  const ev = evd.realEigenvalues;
+  let top = 0;
+  for (let i = 1; i < n; i++) if (ev[i] > ev[top]) top = i;
+  const V = evd.eigenvectorMatrix;
+  const u = new Float64Array(n);
+  let nu = 0;
+  for (let i = 0; i < n; i++) {
+    u[i] = V.get(i, top);
+    nu += u[i] * u[i];
+  }
+  nu = Math.sqrt(nu) || 1;
+  for (let i = 0; i < n; i++) u[i] /= nu;
+  // w = L⁻ᵀ u (back substitution on Lᵀ)
+  const w = new Float64Array(n);
+  for (let i = n - 1; i >= 0; i--) {
+    let s = u[i];
+    for (let k = i + 1; k < n; k++) s -= L[k * n + i] * w[k];
+    w[i] = s / L[i * n + i];
+  }
+  return { lambda: ev[top], w };
+}

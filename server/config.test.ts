@@ -39,11 +39,21 @@ describe('configuration', () => {
     expect(() => loadConfig({ COOKIE_SECURE: 'maybe' })).toThrow(/COOKIE_SECURE/);
   });
 
-  it('warns when production runs with the development session secret', () => {
+  it('refuses to run in production with the development session secret (it is in the repository)', () => {
     const warnings: string[] = [];
-    loadConfig({ NODE_ENV: 'production' }, (m) => warnings.push(m));
-    expect(warnings).toHaveLength(1);
-    expect(warnings[0]).toMatch(/SESSION_SECRET is the development default/);
+    expect(() => loadConfig({ NODE_ENV: 'production' }, (m) => warnings.push(m))).toThrow(ConfigError);
+    expect(() => loadConfig({ NODE_ENV: 'production', SESSION_SECRET: DEV_SESSION_SECRET })).toThrow(
+      /SESSION_SECRET: NODE_ENV is production but SESSION_SECRET is the development default/,
+    );
+    expect(warnings).toEqual([]);
+    // outside production the development default is the intended safe default
+    expect(loadConfig({ NODE_ENV: 'test' }, () => undefined).sessionSecret).toBe(DEV_SESSION_SECRET);
+  });
+
+  it('warns when a production secret is short, and is quiet with a long one', () => {
+    const short: string[] = [];
+    loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'short-secret-1' }, (m) => short.push(m));
+    expect(short).toEqual(['[config] SESSION_SECRET is short: use at least 32 random characters in production']);
     const none: string[] = [];
     loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'x'.repeat(40) }, (m) => none.push(m));
     expect(none).toEqual([]);

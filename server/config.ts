@@ -71,8 +71,13 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
   const c = parsed.data;
   const production = c.NODE_ENV === 'production';
   if (production && c.SESSION_SECRET === DEV_SESSION_SECRET) {
-    warn('[config] SESSION_SECRET is the development default: set a long random secret in production');
-  } else if (production && c.SESSION_SECRET.length < 32) {
+    // The development secret is in the repository: anyone could forge session cookies with it.
+    throw new ConfigError(
+      'Bad configuration:\n  SESSION_SECRET: NODE_ENV is production but SESSION_SECRET is the development default from the ' +
+        "repository; set a long random secret (e.g. `node -e \"console.log(require('crypto').randomBytes(32).toString('base64url'))\"`)",
+    );
+  }
+  if (production && c.SESSION_SECRET.length < 32) {
     warn('[config] SESSION_SECRET is short: use at least 32 random characters in production');
   }
   return {

@@ -49,7 +49,9 @@ export function AlertCard({ alert, now, fetchedAt, showTrack = true }: { alert: 
       <Pressable
         role="link"
         aria-label={`${alert.trackName}: ${kindWords(alert)}, ${STATE_WORDS[alert.state].toLowerCase()}, lasted ${lasted}${worst ? `, lowest damping ${worst}` : ''}. Open the alert.`}
-        style={({ pressed }) => [styles.card, alert.state === 'open' && styles.cardOpen, pressed && styles.pressed]}
+        // One flat style object: Link's asChild merges styles by object spread, which drops arrays
+        // and press-state functions.
+        style={StyleSheet.flatten([styles.card, alert.state === 'open' && styles.cardOpen])}
         testID={`alert-card-${alert.id}`}
       >
         <View style={styles.cardHead}>
@@ -60,8 +62,7 @@ export function AlertCard({ alert, now, fetchedAt, showTrack = true }: { alert: 
           <StateTag state={alert.state} />
         </View>
         <Text variant="small" muted>
-          {showTrack ? `${kindWords(alert)} · ` : ''}since {formatClock(alert.openedAt)} · lasted{' '}
-          <Num variant="small">{lasted}</Num>
+          {showTrack ? `${kindWords(alert)} · ` : ''}since {formatClock(alert.openedAt)} · lasted {lasted}
           {alert.clearedAt ? ` · cleared ${formatClock(alert.clearedAt)}` : ''}
         </Text>
         {worst ? (
@@ -108,7 +109,6 @@ const styles = StyleSheet.create({
     gap: space.xs,
   },
   cardOpen: { borderLeftWidth: 4, borderLeftColor: colors.ink },
-  pressed: { backgroundColor: colors.accentSoft },
   cardHead: { flexDirection: 'row', alignItems: 'center', gap: space.sm },
   cardTitle: { flex: 1, minWidth: 0 },
   caution: {

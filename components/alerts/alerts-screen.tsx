@@ -9,7 +9,7 @@ import { useAlertsQuery } from '@/hooks/use-alerts';
 import { useLiveEvents } from '@/hooks/use-events';
 import { useTracksQuery } from '@/hooks/use-tracks';
 import { formatPercent } from '../format';
-import { CardGrid, Columns, Panel, Screen } from '../layout';
+import { Columns, Panel, Screen } from '../layout';
 import { SelectField } from '../select-field';
 import { EmptyState, ErrorState, LoadingState } from '../state-views';
 import { Text } from '../text';
@@ -19,6 +19,9 @@ import { AlertCard, Caution } from './alert-parts';
 import { Tabs } from './state-tabs';
 
 type State = (typeof ALERT_STATES)[number];
+
+/** The select's value for "every track" (an empty value would read as nothing chosen). */
+const ALL = '*';
 
 const EMPTY: Record<State, { title: string; message: string }> = {
   open: { title: 'No open alerts', message: 'No mode is poorly damped or forced right now, or every running alert has been acknowledged.' },
@@ -59,14 +62,12 @@ export function AlertsScreen({ state: stateParam, track: trackParam }: { state?:
       ) : list.data.alerts.length === 0 ? (
         <EmptyState title={EMPTY[state].title} message={EMPTY[state].message} />
       ) : (
-        <View role="list" aria-label={`${state} alerts`}>
-          <CardGrid>
-            {list.data.alerts.map((a: AlertSummary) => (
-              <View role="listitem" key={a.id}>
-                <AlertCard alert={a} now={now} fetchedAt={fetchedAt} />
-              </View>
-            ))}
-          </CardGrid>
+        <View role="list" aria-label={`${state} alerts`} style={styles.list}>
+          {list.data.alerts.map((a: AlertSummary) => (
+            <View role="listitem" key={a.id}>
+              <AlertCard alert={a} now={now} fetchedAt={fetchedAt} />
+            </View>
+          ))}
         </View>
       )}
     </View>
@@ -77,9 +78,9 @@ export function AlertsScreen({ state: stateParam, track: trackParam }: { state?:
       <Panel title="Filter">
         <SelectField
           label="Mode track"
-          value={track ?? ''}
-          onChange={(v) => setParams({ track: v })}
-          options={[{ value: '', label: 'All tracks' }, ...(tracks.data?.tracks ?? []).map((t) => ({ value: t.code, label: t.name }))]}
+          value={track ?? ALL}
+          onChange={(v) => setParams({ track: v === ALL ? '' : v })}
+          options={[{ value: ALL, label: 'All tracks' }, ...(tracks.data?.tracks ?? []).map((t) => ({ value: t.code, label: t.name }))]}
         />
       </Panel>
       <Panel title="How alerts work">
@@ -116,4 +117,5 @@ export function AlertsScreen({ state: stateParam, track: trackParam }: { state?:
 const styles = StyleSheet.create({
   stack: { gap: space.lg },
   rule: { gap: space.sm },
+  list: { gap: space.sm },
 });

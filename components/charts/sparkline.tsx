@@ -4,7 +4,7 @@
 import { area, line } from 'd3-shape';
 import { useState } from 'react';
 import { StyleSheet, View, type LayoutChangeEvent } from 'react-native';
-import Svg, { G, Line, Path, Text as SvgText } from 'react-native-svg';
+import Svg, { Circle, G, Line, Path, Text as SvgText } from 'react-native-svg';
 import { formatPercent } from '../format';
 import { bands, colors, fonts } from '../theme';
 import { linear } from './axes';
@@ -34,7 +34,7 @@ export interface SparklineProps {
   testID?: string;
 }
 
-const LABEL_W = 36;
+const LABEL_W = 40;
 
 export function Sparkline({ points, poorBelow, lowBelow, from, to, bucketMs = 0, height = 64, label, testID }: SparklineProps) {
   const [width, setWidth] = useState(0);
@@ -81,12 +81,16 @@ export function Sparkline({ points, poorBelow, lowBelow, from, to, bucketMs = 0,
           <Line x1={left} x2={right} y1={lowY} y2={lowY} stroke={bands.low.color} strokeWidth={1.25} strokeDasharray="4 3" />
           <Line x1={left} x2={right} y1={poorY} y2={poorY} stroke={bands.poor.color} strokeWidth={1.25} strokeDasharray="4 3" />
           {mean ? <Path d={mean} fill="none" stroke={colors.accent} strokeWidth={1.75} strokeLinejoin="round" /> : null}
+          {/* A bucket with no neighbour draws no line: mark its mean with a dot. */}
+          {withBreaks.map((p, i) =>
+            p && !withBreaks[i - 1] && !withBreaks[i + 1] ? <Circle key={i} cx={sx(p.t + half)} cy={sy(p.mean)} r={1.75} fill={colors.accent} /> : null,
+          )}
           {last && lastBand ? <MarkerShape kind={bandMarker(lastBand).shape} x={sx(last.t + half)} y={sy(last.mean)} size={3.5} color={bandMarker(lastBand).color} /> : null}
           <G>
-            <SvgText x={right + 4} y={lowY + 4 - labelGap / 2} fontSize={10} fontFamily={fonts.mono} fill={bands.low.color}>
+            <SvgText x={right + 7} y={lowY + 4 - labelGap / 2} fontSize={10} fontFamily={fonts.mono} fill={bands.low.color}>
               {formatPercent(lowBelow)}
             </SvgText>
-            <SvgText x={right + 4} y={poorY + 4 + labelGap / 2} fontSize={10} fontFamily={fonts.mono} fill={bands.poor.color}>
+            <SvgText x={right + 7} y={poorY + 4 + labelGap / 2} fontSize={10} fontFamily={fonts.mono} fill={bands.poor.color}>
               {formatPercent(poorBelow)}
             </SvgText>
           </G>

@@ -59,11 +59,18 @@ export interface ChartZoomOptions {
   /** Controlled domain (the screen owns it); with `onChange`. */
   domain?: Domain;
   onChange?: (d: Domain) => void;
+  /** Where the buttons and keys zoom about (default: the middle of the view), e.g. the data's middle. */
+  center?: number;
+}
+
+/** The zoom focus when it lies in the view, else the view's middle. */
+function focusIn(d: Domain, focus: number | undefined): number {
+  return focus != null && focus >= d[0] && focus <= d[1] ? focus : (d[0] + d[1]) / 2;
 }
 
 const same = (a: Domain, b: Domain) => a[0] === b[0] && a[1] === b[1];
 
-export function useChartZoom({ full, bounds, minSpan, domain, onChange }: ChartZoomOptions): ChartZoom {
+export function useChartZoom({ full, bounds, minSpan, domain, onChange, center: focus }: ChartZoomOptions): ChartZoom {
   const [inner, setInner] = useState<Domain>(full);
   const fullRef = useRef(full);
   // A new data extent (another track, another period) starts a fresh view.
@@ -88,8 +95,8 @@ export function useChartZoom({ full, bounds, minSpan, domain, onChange }: ChartZ
   return {
     domain: current,
     zoomed: !same(current, full),
-    zoomIn: (center) => set(zoomDomain(current, 0.5, center)),
-    zoomOut: (center) => set(zoomDomain(current, 2, center)),
+    zoomIn: (center) => set(zoomDomain(current, 0.5, center ?? focusIn(current, focus))),
+    zoomOut: (center) => set(zoomDomain(current, 2, center ?? focusIn(current, focus))),
     pan: (fraction) => set(panDomain(current, fraction)),
     reset: () => set(full),
     set,

@@ -26,10 +26,10 @@ export function ModeLine({ mode, trackName }: { mode: ModeEstimate; trackName: s
       <Num variant="small" style={styles.hz}>
         {formatHz(mode.frequencyHz)}
       </Num>
-      <Num variant="small" style={styles.damping}>
-        {mode.forced ? 'sustained' : damping}
+      <Num variant="small" style={styles.damping} muted={mode.forced}>
+        {damping}
       </Num>
-      <BandChip band={band} size="small" detail={mode.forced ? `forced oscillation at ${formatHz(mode.frequencyHz)}` : damping} />
+      <BandChip band={band} size="small" detail={mode.forced ? `sustained forced oscillation at ${formatHz(mode.frequencyHz)}, apparent damping ${damping}` : damping} />
     </View>
   );
 }

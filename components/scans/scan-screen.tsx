@@ -12,7 +12,7 @@ import { useTracksQuery } from '@/hooks/use-tracks';
 import { BandChip } from '../band-chip';
 import { Button } from '../button';
 import { DampingChart, LineChart, bandMarker, type ChartSeries, type DampingPoint } from '../charts';
-import { formatDamping, formatDateTime, formatHzRange } from '../format';
+import { formatDamping, formatDateTime, formatHz, formatHzRange } from '../format';
 import { Columns, Panel, Screen } from '../layout';
 import { analysisSubject } from '../recordings/analyses-list';
 import { StatusTag } from '../recordings/status';
@@ -34,21 +34,24 @@ interface TrackGroup {
   modes: ModeEstimate[];
 }
 
-function groupByTrack(windows: ScanWindow[], tracks: Track[]): TrackGroup[] {
+function groupByTrack(windows: ScanWindow[], tracks: Track[]): { groups: TrackGroup[]; forcedOutside: ModeEstimate[] } {
   const groups = new Map<string, TrackGroup>();
   for (const t of tracks) groups.set(t.code, { code: t.code, name: t.name, track: t, modes: [] });
   const other: TrackGroup = { code: null, name: 'Outside the mode tracks', track: null, modes: [] };
+  // Forced oscillations outside every track have no damping to chart: they get their own list.
+  const forcedOutside: ModeEstimate[] = [];
   for (const w of windows) {
     for (const m of w.modes) {
       const g = m.trackCode ? groups.get(m.trackCode) : undefined;
       if (g) g.modes.push(m);
+      else if (m.forced) forcedOutside.push(m);
       else other.modes.push(m);
     }
   }
   const out = [...groups.values()].filter((g) => g.modes.length > 0);
   if (other.modes.length > 0) out.push(other);
   for (const g of out) g.modes.sort((a, b) => Date.parse(a.at) - Date.parse(b.at));
-  return out;
+  return { groups: out, forcedOutside };
 }
 
 /** A scan: its progress, each tracked mode's damping over the windows, and every window's modes. */
@@ -84,15 +87,16 @@ export function ScanScreen({ id: idParam }: { id: string | undefined }) {
   }
   const data = q.data;
   const a = data.analysis;
-  const groups = groupByTrack(data.windows, tracks.data?.tracks ?? []);
+  const { groups, forcedOutside } = groupByTrack(data.windows, tracks.data?.tracks ?? []);
 
   const status = <ScanStatus data={data} />;
   const charts =
-    groups.length > 0 ? (
+    groups.length > 0 || forcedOutside.length > 0 ? (
       <View style={styles.stack}>
         {groups.map((g) => (
           <TrackDamping key={g.code ?? 'other'} group={g} />
         ))}
+        {forcedOutside.length > 0 ? <ForcedPanel modes={forcedOutside} windows={data.windows.length} /> : null}
         <FrequencyPanel data={data} tracks={tracks.data?.tracks ?? []} />
       </View>
     ) : isRunning(a) ? null : a.status === 'done' ? (
@@ -196,9 +200,42 @@ function TrackDamping({ group }: { group: TrackGroup }) {
       testID={`scan-track-${group.code ?? 'other'}`}
     >
       <Text variant="small" muted style={styles.under}>
-        {`${t ? `${formatHzRange(t.minHz, t.maxHz)} · ` : ''}${group.modes.length} estimates${lowest ? ` · lowest ${formatDamping(lowest.dampingPercent, lowest.dampingLo, lowest.dampingHi)} at ${formatUtcTime(Date.parse(lowest.at) / 1000)}` : ''}`}
+        {`${t ? `${formatHzRange(t.minHz, t.maxHz)} · ` : ''}${group.modes.length} ${group.modes.length === 1 ? 'estimate' : 'estimates'}${lowest ? ` · lowest ${formatDamping(lowest.dampingPercent, lowest.dampingLo, lowest.dampingHi)} at ${formatUtcTime(Date.parse(lowest.at) / 1000)}` : ''}`}
       </Text>
       <DampingChart poorBelow={th.poorBelow} lowBelow={th.lowBelow} points={points} xExtent={padded(points.map((p) => p.x))} height={200} testID={`damping-chart-${group.code ?? 'other'}`} />
+    </Panel>
+  );
+}
+
+/** Forced oscillations outside the tracks: where and how often, grouped by frequency (0.01 Hz). */
+function ForcedPanel({ modes, windows }: { modes: ModeEstimate[]; windows: number }) {
+  const byHz = new Map<number, ModeEstimate[]>();
+  for (const m of modes) {
+    const k = Math.round(m.frequencyHz * 100);
+    byHz.set(k, [...(byHz.get(k) ?? []), m]);
+  }
+  return (
+    <Panel title="Forced oscillations" label="Forced oscillations outside the mode tracks" aside={<BandChip band="forced" />} testID="scan-forced">
+      <Text variant="small" muted style={styles.under}>
+        Sustained sinusoids driven from outside the grid’s own dynamics, outside every mode track. They are not counted as poorly damped modes.
+      </Text>
+      {[...byHz.entries()]
+        .sort((a, b) => a[0] - b[0])
+        .map(([k, list]) => {
+          const mean = list.reduce((s, m) => s + m.frequencyHz, 0) / list.length;
+          const first = list.reduce((a, m) => (Date.parse(m.at) < Date.parse(a.at) ? m : a), list[0]);
+          return (
+            <View key={k} style={styles.forcedRow}>
+              <Text aria-hidden color={bands.forced.color}>
+                {bands.forced.shape}
+              </Text>
+              <Num variant="small" bold>
+                {formatHz(mean)}
+              </Num>
+              <Text variant="small">{`in ${list.length} of ${windows} windows, first in the window ending ${formatUtcTime(Date.parse(first.at) / 1000)}`}</Text>
+            </View>
+          );
+        })}
     </Panel>
   );
 }
@@ -305,6 +342,7 @@ const styles = StyleSheet.create({
   under: { marginBottom: space.sm },
   key: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md, marginTop: space.xs },
   windows: { gap: 0 },
+  forcedRow: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'baseline', columnGap: space.sm, paddingVertical: 2 },
   window: { paddingVertical: space.sm, borderTopWidth: 1, borderTopColor: '#E6E1D7', gap: 2 },
   windowHead: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'baseline', columnGap: space.md },
   pager: { flexDirection: 'row', justifyContent: 'space-between', alignItems: 'center', flexWrap: 'wrap', gap: space.sm, marginTop: space.sm },

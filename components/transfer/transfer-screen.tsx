@@ -248,12 +248,11 @@ function ProjectionFigure({ what, p, level, shape, color, testID }: { what: stri
       {p.x != null ? (
         <Text variant="small" muted>
           {level} % interval <Num variant="small">{formatMwRange(p.lo, p.hi)}</Num>
-          {p.se != null ? (
-            <>
-              {' '}
-              · standard error <Num variant="small">{formatMw(p.se)}</Num>
-            </>
-          ) : null}
+        </Text>
+      ) : null}
+      {p.x != null && p.se != null ? (
+        <Text variant="small" muted>
+          standard error <Num variant="small">{formatMw(p.se)}</Num>
         </Text>
       ) : null}
       {p.extrapolated ? (

@@ -77,7 +77,14 @@ function TrackTrends({ code, tracks }: { code: string; tracks: { code: string; n
   }, [period, q.data, q.isPlaceholderData]);
 
   const full = period?.full ?? ([Date.now() - DAY_MS, Date.now()] as Domain);
-  const zoom = useChartZoom({ full, bounds: null, domain: view ?? full, onChange: setView, minSpan: 20 * 60_000 });
+  // Zoom about the middle of the estimates in view, so "Zoom in" closes in on data, not on a gap.
+  const center = useMemo(() => {
+    const d = q.data;
+    if (!d || d.total === 0) return undefined;
+    const xs = d.aggregated ? d.buckets.map((b) => Date.parse(b.start)) : d.points.map((p) => Date.parse(p.at));
+    return xs.length ? (xs[0] + xs[xs.length - 1]) / 2 : undefined;
+  }, [q.data]);
+  const zoom = useChartZoom({ full, bounds: null, domain: view ?? full, onChange: setView, minSpan: 20 * 60_000, center });
   const alerts = useAlertsQuery({ track: code, limit: 500 });
   const now = Date.now();
   const spans: ShadedSpan[] = useMemo(

@@ -24,7 +24,8 @@ type Phase =
   | { kind: 'ingesting'; response: UploadResponse }
   | { kind: 'done'; response: UploadResponse }
   | { kind: 'mapping'; columns: string[]; knownChannels: string[] }
-  | { kind: 'refused'; title: string; message: string; existingId?: number }
+  /** `again`: sending the same file again may work (a network fault), so offer it. */
+  | { kind: 'refused'; title: string; message: string; existingId?: number; again?: boolean }
   | { kind: 'failed'; message: string; recordingId: number };
 
 /**
@@ -112,7 +113,7 @@ export function UploadPanel() {
             setPhase({ kind: 'refused', title: 'The file was refused', message: err.message });
             return;
           }
-          setPhase({ kind: 'refused', title: 'The upload did not go through', message: errorMessage(err) });
+          setPhase({ kind: 'refused', title: 'The upload did not go through', message: errorMessage(err), again: true });
         },
       },
     );
@@ -209,7 +210,7 @@ export function UploadPanel() {
       ) : null}
 
       <View style={styles.buttons}>
-        {phase.kind !== 'mapping' ? (
+        {phase.kind !== 'mapping' && phase.kind !== 'done' ? (
           <Button
             title={files.length ? 'Choose another file' : 'Choose a file…'}
             label={files.length ? 'Choose another recording file' : 'Choose a recording file'}
@@ -219,11 +220,11 @@ export function UploadPanel() {
             testID="upload-choose"
           />
         ) : null}
-        {files.length > 0 && (phase.kind === 'idle' || phase.kind === 'refused' || phase.kind === 'failed') && !pickError ? (
+        {files.length > 0 && (phase.kind === 'idle' || (phase.kind === 'refused' && phase.again)) && !pickError ? (
           <Button title="Upload" label={`Upload ${fileLabel}`} onPress={() => start(mapping)} testID="upload-start" />
         ) : null}
         {phase.kind === 'sending' ? <Button title="Cancel" kind="quiet" onPress={reset} /> : null}
-        {phase.kind === 'done' ? <Button title="Add another" kind="quiet" onPress={reset} /> : null}
+        {phase.kind === 'done' ? <Button title="Add another recording" kind="secondary" onPress={reset} /> : null}
       </View>
     </Panel>
   );

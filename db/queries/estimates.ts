@@ -1,7 +1,7 @@
 // Mode estimates of tracks over time: raw ranges, time buckets for long spans (from the rollups,
 // estimate_rollups, where whole rollup buckets fit), one estimate with its shape and source, and the
 // newest estimate of each track with its scan step.
-import { and, asc, desc, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, gte, inArray, lte, sql, type SQL } from 'drizzle-orm';
 import type { DbOrTx } from '../client';
 import { analyses, areas, channels, estimateRollups, fits, modeEstimates, modeShapes, modeTracks, ROLLUP_SPANS, scanWindows, sites } from '../schema';
 
@@ -366,7 +366,11 @@ export async function trackIndex(db: DbOrTx): Promise<Map<number, { code: string
   return new Map(rows.map((r) => [r.id, r]));
 }
 
-/** The natural-mode estimates of a track with the corridor transfer and angle of their windows. */
+/**
+ * The natural-mode estimates of a track with the corridor transfer and angle of their windows.
+ * The analyses' settings are read once per analysis (not carried on every row: a month holds
+ * ~40 000 rows and the settings are ~0.6 kB of JSON each).
+ */
 export async function studyRows(
   db: DbOrTx,
   params: { trackId: number; corridorCode: string; from: Date; to: Date },
@@ -390,7 +394,6 @@ export async function studyRows(
       analysisId: scanWindows.analysisId,
       start: scanWindows.startTime,
       end: scanWindows.endTime,
-      settings: analyses.settings,
       dampingPercent: modeEstimates.dampingPercent,
       dampingLo: modeEstimates.dampingLo,
       dampingHi: modeEstimates.dampingHi,
@@ -400,7 +403,6 @@ export async function studyRows(
     })
     .from(modeEstimates)
     .innerJoin(scanWindows, eq(scanWindows.id, modeEstimates.windowId))
-    .innerJoin(analyses, eq(analyses.id, scanWindows.analysisId))
     .where(
       and(
         eq(modeEstimates.trackId, params.trackId),
@@ -413,8 +415,15 @@ export async function studyRows(
       ),
     )
     .orderBy(asc(scanWindows.startTime), asc(scanWindows.analysisId));
+  const ids = [...new Set(rows.map((r) => r.analysisId))];
+  const settings = new Map<number, Record<string, unknown>>();
+  if (ids.length) {
+    const a = await db.select({ id: analyses.id, settings: analyses.settings }).from(analyses).where(inArray(analyses.id, ids));
+    for (const r of a) settings.set(r.id, r.settings);
+  }
   return rows.map((r) => ({
     ...r,
+    settings: settings.get(r.analysisId) ?? {},
     transferMw: r.transferMw === null ? null : Number(r.transferMw),
     angleDeg: r.angleDeg === null ? null : Number(r.angleDeg),
   }));

@@ -46,6 +46,7 @@ import {
   TARROW_LINES,
   TARROW_LOADS_MW,
   TARROW_MACHINES,
+  TARROW_MECHANICAL_NOISE_MW,
   TARROW_NOMINAL_HZ,
   TARROW_SITES,
   TARROW_TRACKS,
@@ -105,9 +106,17 @@ export interface TarrowModel {
   stateNames: string[];
   /** State matrix, 2·machines × 2·machines. */
   A: number[][];
-  /** Noise input: d(state)/dt per MW of load increase at each `noiseInputs` site (rad/s² per MW). */
+  /**
+   * Noise input: d(state)/dt per MW of each `noiseInputs` entry (rad/s² per MW): a load increase at
+   * a site (entry = the site code), or a mechanical-power increase of a unit (`<machine>.mechanical`).
+   */
   B: number[][];
   noiseInputs: string[];
+  /**
+   * Per noise input, the MW whose fraction `loadNoise` is the RMS of the input's 1-second average
+   * (the load itself; TARROW_MECHANICAL_NOISE_MW for a unit's mechanical power).
+   */
+  noiseScaleMw: number[];
   outputs: ModelOutput[];
   /** Oscillatory modes (upper half-plane), sorted by frequency. */
   trueModes: TrueMode[];
@@ -331,11 +340,21 @@ export function buildTarrowModel(transferMw: number, options: TarrowModelOptions
     for (let g = 0; g < ng; g++) col[ng + g] = G[g * nb + k] / (M[g] * BASE_MVA);
     return col;
   });
-  const noiseInputs = Object.keys(TARROW_LOADS_MW);
+  // Ambient drive: every load's random fluctuation, then the hydro units' mechanical-power
+  // fluctuation (TARROW_MECHANICAL_NOISE_MW), which acts on the unit's own rotor only.
+  const loadSites = Object.keys(TARROW_LOADS_MW);
+  const mechMachines = Object.keys(TARROW_MECHANICAL_NOISE_MW);
+  const noiseInputs = [...loadSites, ...mechMachines.map((m) => `${m}.mechanical`)];
+  const noiseScaleMw = [...loadSites.map((s) => TARROW_LOADS_MW[s]), ...mechMachines.map((m) => TARROW_MECHANICAL_NOISE_MW[m])];
   const B: number[][] = [...Array(n)].map(() => new Array<number>(noiseInputs.length).fill(0));
-  noiseInputs.forEach((site, c) => {
+  loadSites.forEach((site, c) => {
     const col = injection[SITE_CODES.indexOf(site)];
     for (let i = 0; i < n; i++) B[i][c] = -col[i]; // a load increase is a negative injection
+  });
+  mechMachines.forEach((code, k) => {
+    const g = machines.findIndex((m) => m.code === code);
+    if (g < 0) throw new ModalInputError(`TARROW_MECHANICAL_NOISE_MW names ${code}, which is not a Tarrow machine`);
+    B[ng + g][loadSites.length + k] = 1 / (M[g] * BASE_MVA); // M Δω' = ΔPm (pu)
   });
   const angleFeed: number[][] = SITE_CODES.map((_, i) => SITE_CODES.map((__, k) => lnnInv[i * nb + k] / BASE_MVA));
 
@@ -382,6 +401,7 @@ export function buildTarrowModel(transferMw: number, options: TarrowModelOptions
     A,
     B,
     noiseInputs,
+    noiseScaleMw,
     outputs,
     trueModes: [],
     excitationDampingPerInertia: excPerInertia,

@@ -14,7 +14,7 @@ import type { SampledRecord } from '../types';
 import { STANDARD_REPORTING_RATES } from '../preprocess';
 import { psdFactor, vanLoan } from './dense';
 import { BASE_MVA, buildTarrowModel, wrap180, type TarrowModel, type TrueMode } from './model';
-import { TARROW_CORRIDORS, TARROW_LOADS_MW, TARROW_MACHINES, TARROW_TRANSFER_RANGE_MW } from '../../fixtures/tarrow-network';
+import { TARROW_CORRIDORS, TARROW_MACHINES, TARROW_TRANSFER_RANGE_MW } from '../../fixtures/tarrow-network';
 
 const STANDARD_RATES_60HZ = STANDARD_REPORTING_RATES[60];
 
@@ -32,7 +32,8 @@ export const DEFAULT_PMU_NOISE: PmuNoise = { angleDeg: 0.01, freqHz: 0.0002, flo
 
 /**
  * Default ambient drive: each load's random fluctuation, as the RMS of its 1-second average, is this
- * fraction of the load (white noise of intensity (fraction · P)² MW²·s).
+ * fraction of the load (white noise of intensity (fraction · P)² MW²·s); the hydro units'
+ * mechanical-power fluctuation scales with it (TARROW_MECHANICAL_NOISE_MW), so 0 turns all off.
  */
 export const DEFAULT_LOAD_NOISE = 0.003;
 
@@ -55,7 +56,7 @@ interface CommonOptions {
   seed?: number;
   /** Epoch seconds (UTC) of the first sample (default 2025-01-01T00:00:00Z). */
   startTime?: number;
-  /** Load-noise fraction (default DEFAULT_LOAD_NOISE); 0 turns the ambient drive off. */
+  /** Load-noise fraction (default DEFAULT_LOAD_NOISE; scales every ambient input); 0 turns the ambient drive off. */
   loadNoise?: number;
   /** PMU measurement noise (defaults DEFAULT_PMU_NOISE); zeros turn it off. */
   pmuNoise?: Partial<PmuNoise>;
@@ -250,9 +251,9 @@ function discretise(model: TarrowModel, rate: number, loadNoise: number, channel
     const ng = model.machines.length;
     a[(ng + g) * n + stepState] = -extras.step.mw / (model.network.inertia[g] * BASE_MVA);
   }
-  // B W Bᵀ, W = diag((loadNoise · P_load)²) MW²·s
+  // B W Bᵀ, W = diag((loadNoise · P_k)²) MW²·s, P_k the load (or the unit's noise scale, model.ts)
   const bwb = new Float64Array(n * n);
-  const q = model.noiseInputs.map((site) => (loadNoise * TARROW_LOADS_MW[site]) ** 2);
+  const q = model.noiseScaleMw.map((mw) => (loadNoise * mw) ** 2);
   for (let i = 0; i < n0; i++) {
     for (let j = 0; j < n0; j++) {
       let s = 0;

@@ -33,29 +33,61 @@ function limiter(opts: {
   });
 }
 
+/** Both limits apply: the first that is exhausted answers 429. */
+function both(first: RequestHandler, second: RequestHandler): RequestHandler {
+  return (req, res, next) => {
+    void first(req, res, (err?: unknown) => (err ? next(err) : void second(req, res, next)));
+  };
+}
+
+/** Failed sign-ins from one address over all e-mails (password spraying) per 15 minutes. */
+export const SIGN_IN_ADDRESS_LIMIT = 50;
+/** Reset requests from one address over all e-mails (mail flooding) per 15 minutes. */
+export const PASSWORD_RESET_ADDRESS_LIMIT = 20;
+
 export function createRateLimits(): Record<RateLimitName, RequestHandler> {
   return {
     // 10 failed attempts per minute for one address and e-mail; successful sign-ins do not count,
-    // so the 11th attempt after ten wrong passwords is refused even with the right one.
-    signIn: limiter({
-      windowMs: MINUTE,
-      limit: 10,
-      key: (req) => `${ipOf(req)}|${emailOf(req)}`,
-      message: 'Too many sign-in attempts; wait a minute and try again',
-      skipSuccessfulRequests: true,
-    }),
+    // so the 11th attempt after ten wrong passwords is refused even with the right one. Over all
+    // e-mails, one address gets 50 failures per 15 minutes: guessing one common password across
+    // many accounts would otherwise never meet the per-e-mail limit.
+    signIn: both(
+      limiter({
+        windowMs: 15 * MINUTE,
+        limit: SIGN_IN_ADDRESS_LIMIT,
+        key: ipOf,
+        message: 'Too many failed sign-ins from this address; wait a few minutes and try again',
+        skipSuccessfulRequests: true,
+      }),
+      limiter({
+        windowMs: MINUTE,
+        limit: 10,
+        key: (req) => `${ipOf(req)}|${emailOf(req)}`,
+        message: 'Too many sign-in attempts; wait a minute and try again',
+        skipSuccessfulRequests: true,
+      }),
+    ),
     invitations: limiter({
       windowMs: 15 * MINUTE,
       limit: 30,
       key: (req) => `${ipOf(req)}|${(req.user as { id?: number } | undefined)?.id ?? ''}`,
       message: 'Too many invitations in a short time; wait a few minutes',
     }),
-    passwordReset: limiter({
-      windowMs: 15 * MINUTE,
-      limit: 5,
-      key: (req) => `${ipOf(req)}|${emailOf(req)}`,
-      message: 'Too many password-reset requests; wait a few minutes',
-    }),
+    // 5 per address and e-mail, and 20 per address over all e-mails (each may send an e-mail).
+    passwordReset: both(
+      limiter({
+        windowMs: 15 * MINUTE,
+        limit: PASSWORD_RESET_ADDRESS_LIMIT,
+        key: ipOf,
+        message: 'Too many password-reset requests from this address; wait a few minutes',
+      }),
+      limiter({
+        windowMs: 15 * MINUTE,
+        limit: 5,
+        key: (req) => `${ipOf(req)}|${emailOf(req)}`,
+        message: 'Too many password-reset requests; wait a few minutes',
+      }),
+    ),
     // Accepting an invitation / completing a reset / looking a token up: tokens are 256-bit, this
     // only stops a runaway client.
     linkTokens: limiter({

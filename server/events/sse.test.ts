@@ -113,4 +113,37 @@ describe('streamEvents', () => {
     expect(text).not.toContain('analysis.progress');
     c.close();
   });
+
+  it('ends the stream once revalidate says the client may no longer listen, and only then', async () => {
+    let allowed = true;
+    let asked = 0;
+    const { url, bus } = await start({
+      revalidateMs: 30,
+      revalidate: async () => {
+        asked++;
+        if (asked === 2) throw new Error('database away'); // an error keeps the stream open
+        return allowed;
+      },
+    });
+    const ended = new Promise<string>((resolve, reject) => {
+      http
+        .get(url, (res) => {
+          let text = '';
+          res.setEncoding('utf8');
+          res.on('data', (d: string) => (text += d));
+          res.on('end', () => resolve(text));
+        })
+        .on('error', reject);
+    });
+    for (let i = 0; i < 100 && asked < 4; i++) await new Promise((r) => setTimeout(r, 10));
+    expect(asked).toBeGreaterThanOrEqual(4);
+    expect(bus.listenerCount()).toBe(1); // still open after a refused check that threw
+    allowed = false;
+    const text = await ended;
+    expect(text).toContain('event: ready');
+    expect(bus.listenerCount()).toBe(0);
+    const after = asked;
+    await new Promise((r) => setTimeout(r, 100));
+    expect(asked).toBe(after); // no more checks once ended
+  });
 });

@@ -18,6 +18,13 @@ export interface SseOptions {
   retryMs?: number;
   /** Only events this returns true for are sent (default: all). */
   filter?: (event: KeelEvent) => boolean;
+  /**
+   * Asked every `revalidateMs` whether the client may still listen (its session still signed in);
+   * false ends the stream. An error counts as yes (a database blip must not cut every stream).
+   */
+  revalidate?: () => Promise<boolean>;
+  /** Interval of `revalidate`, ms (default 5 s). */
+  revalidateMs?: number;
 }
 
 /** Streams the bus's events to one client until it goes away. */
@@ -42,10 +49,28 @@ export async function streamEvents(req: IncomingMessage, res: ServerResponse, bu
   });
   const heartbeat = setInterval(() => write(`: keep-alive ${Date.now()}\n\n`), opts.heartbeatMs ?? 20_000);
   (heartbeat as unknown as { unref?: () => void }).unref?.();
+  let checking = false;
+  const recheck = opts.revalidate
+    ? setInterval(() => {
+        if (checking || closed) return;
+        checking = true;
+        opts.revalidate!()
+          .catch(() => true)
+          .then((ok) => {
+            if (!ok && !closed) {
+              cleanup();
+              res.end();
+            }
+          })
+          .finally(() => (checking = false));
+      }, opts.revalidateMs ?? 5000)
+    : null;
+  (recheck as unknown as { unref?: () => void } | null)?.unref?.();
   const cleanup = () => {
     if (closed) return;
     closed = true;
     clearInterval(heartbeat);
+    if (recheck) clearInterval(recheck);
     unsubscribe();
   };
   req.on('close', cleanup);

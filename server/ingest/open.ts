@@ -18,6 +18,31 @@ export interface UploadedFile {
 
 export type UploadKind = 'csv' | 'cff' | 'comtrade';
 
+/** Longest file name kept (the common file-system limit; longer names are shortened). */
+export const MAX_UPLOAD_NAME = 255;
+
+/**
+ * The client's file name as Keel keeps it (metadata only: shown in lists and messages, never a
+ * path). The multipart parser already keeps only the last path segment; here control characters
+ * (an RFC 5987 name can carry %00, which PostgreSQL text cannot hold), bidirectional overrides
+ * (U+202E makes "x<U+202E>vsc.exe" display as "xexe.csv") and path separators go, surrounding
+ * blanks are trimmed, and a long name is shortened keeping its extension. Never empty.
+ */
+export function cleanUploadName(name: string): string {
+  let n = name
+    .normalize('NFC')
+    .replace(/[\u0000-\u001f\u007f-\u009f\u200e\u200f\u202a-\u202e\u2066-\u2069\ufeff]/g, '')
+    .replace(/[/\\]/g, '_')
+    .trim();
+  if (n === '' || n === '.' || n === '..') n = 'upload';
+  const chars = Array.from(n); // code points: a cut never splits a surrogate pair
+  if (chars.length > MAX_UPLOAD_NAME) {
+    const ext = /\.[A-Za-z0-9]{1,8}$/.exec(n)?.[0] ?? '';
+    n = chars.slice(0, MAX_UPLOAD_NAME - ext.length).join('') + ext;
+  }
+  return n;
+}
+
 export function extensionOf(name: string): string {
   const m = /\.([A-Za-z0-9]+)$/.exec(name);
   return m ? m[1].toLowerCase() : '';

@@ -42,7 +42,7 @@ import {
 import { liveBus } from '../events/live';
 import { downsampleMinMax } from '../ingest/downsample';
 import { DuplicateRecordingError, FileRefusedError, MappingError, UnmappedColumnsError } from '../ingest/errors';
-import type { UploadedFile } from '../ingest/open';
+import { cleanUploadName, type UploadedFile } from '../ingest/open';
 import { ingestSettings, type IngestSettings } from '../ingest/settings';
 import { removeSpooled, spoolStorage, sweepSpool } from '../ingest/spool';
 import { prepareUpload, storeUpload } from '../ingest/store';
@@ -112,6 +112,8 @@ async function receiveUpload(req: Request, res: Response, deps: Deps): Promise<U
   }
   const mw = multer({
     storage: spoolStorage(s.spoolDir),
+    // Browsers send a quoted file name as UTF-8 (HTML standard), not Latin-1.
+    defParamCharset: 'utf8',
     limits: { fileSize: s.uploadMaxBytes, files: 3, fields: 5, fieldSize: 200_000, parts: 10 },
   }).array(UPLOAD_FILE_FIELD, 3);
   await new Promise<void>((resolve, reject) => {
@@ -129,8 +131,8 @@ async function receiveUpload(req: Request, res: Response, deps: Deps): Promise<U
     throw new ValidationError(`The multipart body is malformed: ${(err as Error).message}`, [{ path: '', message: 'Malformed multipart body' }]);
   });
   const parts = (req.files as (Express.Multer.File & { sha256: string })[] | undefined) ?? [];
-  // The client's name is only shown (messages, the list); a silly length is cut, never used as a path.
-  return parts.map((f) => ({ originalName: f.originalname.slice(0, 255) || 'upload', path: f.path, size: f.size, sha256: f.sha256 }));
+  // The client's name is only shown (messages, the list), never used as a path: cleaned for display.
+  return parts.map((f) => ({ originalName: cleanUploadName(f.originalname), path: f.path, size: f.size, sha256: f.sha256 }));
 }
 
 // ---------------------------------------------------------------- answers

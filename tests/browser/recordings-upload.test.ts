@@ -19,6 +19,7 @@ const START = Date.UTC(2025, 5, 2, 9, 0, 0) / 1000;
 // Fewer channels keep the file small (≈2.5 MB): four angles and the corridor flow.
 const CHANNELS = ['moorgate.angle', 'tarrow-central.angle', 'saltreach-bay.angle', 'greyscar.angle', 'moorgate.mw'];
 const UNKNOWN_COLUMN = 'GRY_ANG_RAW';
+const FORCED_HZ = 0.95;
 
 let stack: Stack;
 let dir: string;
@@ -33,9 +34,19 @@ afterAll(async () => {
   if (dir) fs.rmSync(dir, { recursive: true, force: true });
 });
 
-/** 25 minutes of ambient data at 2300 MW; greyscar.angle written under a name the network lacks. */
+/**
+ * 25 minutes of ambient data at 2300 MW with a sustained 0.95 Hz, 15 MW injection at Cinderholt
+ * (a forced oscillation between the tracks' bands); greyscar.angle written under a name the
+ * network lacks.
+ */
 function ambientFile(seed: number): { file: string; name: string } {
-  const record = simulateAmbient(buildTarrowModel(2300), { minutes: 25, seed, startTime: START + seed * 7200, channels: CHANNELS });
+  const record = simulateAmbient(buildTarrowModel(2300), {
+    minutes: 25,
+    seed,
+    startTime: START + seed * 7200,
+    channels: CHANNELS,
+    forced: { frequencyHz: FORCED_HZ, amplitude: 15, site: 'cinderholt' },
+  });
   const csv = writeCsv(record, { decimals: 4 }).replace(/^time,(.*)$/m, (_, cols: string) => `time,${cols.replace('greyscar.angle', UNKNOWN_COLUMN)}`);
   const name = `tarrow-ambient-2300mw-${seed}.csv`;
   const file = path.join(dir, name);
@@ -56,8 +67,14 @@ async function signIn(page: Page): Promise<void> {
   await page.goto(`${stack.baseUrl}/`);
   await page.getByLabel('Email').fill('engineer@tarrow.example');
   await page.getByLabel('Password').fill(PASSWORD);
+  // Sign-in lands on Watch; let its first answer arrive, so what follows is this suite's screens.
+  const watch = page.waitForResponse((r) => new URL(r.url()).pathname === '/api/watch', { timeout: 15_000 }).catch(() => null);
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).waitFor({ timeout: 20_000 });
+  await watch;
+  // The browser logs a failed request a moment after its answer: let that land before the
+  // caller starts counting.
+  await page.waitForTimeout(500);
 }
 
 /** The app scrolls inside its own frame: grow the viewport to the content for a whole-screen shot. */
@@ -87,7 +104,8 @@ async function pickFile(page: Page, file: string): Promise<void> {
 }
 
 function expectNoErrors(b: BrowserSession, where: string): void {
-  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}`).toEqual([]);
+  const server = b.errors.length ? `\nlast server lines:\n${stack.logs.slice(-25).join('\n')}` : '';
+  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}${server}`).toEqual([]);
 }
 
 for (const viewport of ['phone', 'wide'] as ViewportName[]) {
@@ -96,6 +114,10 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
       const b = await openBrowser('recordings-upload', viewport);
       try {
         const { page } = b;
+        // Server errors name their request, so a failure says which call broke.
+        page.on('response', (r) => {
+          if (r.status() >= 500) b.errors.push(`HTTP ${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
+        });
         await signIn(page);
         // Errors of the sign-in screen are not this suite's; every screen from here on is.
         b.errors.length = 0;
@@ -222,8 +244,8 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         // The north–south mode has its damping chart with the 3 % and 5 % lines.
         const ns = page.getByTestId('scan-track-north-south');
         await ns.waitFor();
-        await ns.getByText('3.0 % poor').waitFor();
-        await ns.getByText('5.0 % low').waitFor();
+        await ns.getByText('3.0 % poor').first().waitFor();
+        await ns.getByText('5.0 % low').first().waitFor();
         // Every window lists its modes: frequency in Hz to 3 decimals, damping in % with its interval, band in words.
         const windows = page.getByTestId('scan-windows');
         expect(await windows.getByRole('listitem').count()).toBe(3);
@@ -233,6 +255,18 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const natural = lines.filter((l) => !/forced/.test(l));
         for (const l of natural) expect(l).toMatch(/\d+\.\d %( ±\d+\.\d)?/);
         for (const l of lines) expect(l).toMatch(/\b(ample|low|poor|forced)\b/);
+        // The injected sinusoid is reported as forced — shape, colour and word — never as a poorly
+        // damped mode (the simulator's injection frequency; the estimator's forced test).
+        const forced = lines.filter((l) => /forced/.test(l));
+        expect(forced.length).toBeGreaterThanOrEqual(1);
+        for (const l of forced) {
+          expect(l).toMatch(/0\.95\d Hz/);
+          expect(l).toMatch(/∿\s*forced/);
+          expect(l).not.toMatch(/poor/);
+        }
+        const chip = windows.getByRole('img', { name: /^Band: forced, sustained forced oscillation at 0\.95\d Hz/ }).first();
+        expect(await chip.evaluate((el) => getComputedStyle(el).borderTopColor)).toBe('rgb(107, 79, 160)'); // violet #6B4FA0
+        await page.getByTestId('scan-forced').getByText(/^0\.95\d Hz$/).first().waitFor();
         // North–south at 2300 MW: about 0.33 Hz and 3.6 % (the simulator's calibration, fixtures
         // README: 5 % at 1867 MW, 3 % at 2500 MW); a generous range check of what the screen shows.
         const nsLines = lines.filter((l) => /North.south/.test(l));

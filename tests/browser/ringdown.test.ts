@@ -49,8 +49,14 @@ async function signIn(page: Page): Promise<void> {
   await page.goto(`${stack.baseUrl}/`);
   await page.getByLabel('Email').fill('engineer@tarrow.example');
   await page.getByLabel('Password').fill(PASSWORD);
+  // Sign-in lands on Watch; let its first answer arrive, so what follows is this suite's screens.
+  const watch = page.waitForResponse((r) => new URL(r.url()).pathname === '/api/watch', { timeout: 15_000 }).catch(() => null);
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).waitFor({ timeout: 20_000 });
+  await watch;
+  // The browser logs a failed request a moment after its answer: let that land before the
+  // caller starts counting.
+  await page.waitForTimeout(500);
 }
 
 /** The app scrolls inside its own frame: grow the viewport to the content for a whole-screen shot. */
@@ -74,7 +80,8 @@ async function shotAll(b: BrowserSession, name: string): Promise<void> {
 }
 
 function expectNoErrors(b: BrowserSession, where: string): void {
-  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}`).toEqual([]);
+  const server = b.errors.length ? `\nlast server lines:\n${stack.logs.slice(-25).join('\n')}` : '';
+  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}${server}`).toEqual([]);
 }
 
 /** The `d` of the reconstruction's line (drawn in the accent colour) in the ring-down chart. */
@@ -107,6 +114,10 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
       const b = await openBrowser('ringdown', viewport);
       try {
         const { page } = b;
+        // Server errors name their request, so a failure says which call broke.
+        page.on('response', (r) => {
+          if (r.status() >= 500) b.errors.push(`HTTP ${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
+        });
         await signIn(page);
         b.errors.length = 0;
         await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).click();

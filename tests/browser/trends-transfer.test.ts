@@ -103,7 +103,9 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await page.getByRole('button', { name: 'Zoom in on damping' }).click();
         const zb = await (await zoomed).json();
         const span = Date.parse(zb.to) - Date.parse(zb.from);
-        expect(span).toBeLessThan(Date.parse(body.to) - Date.parse(body.from));
+        expect(span).toBeCloseTo((Date.parse(body.to) - Date.parse(body.from)) / 2, -3);
+        // it zooms about the middle of the estimates in view, so the half span still holds some
+        expect(zb.total).toBeGreaterThan(0);
         await expect.poll(async () => fromLabel(await summary.innerText()), { timeout: 10_000 }).not.toBe(before);
         await shotWhole(b, 'trends-zoomed');
 

@@ -1,0 +1,182 @@
+// `npm run bench:api`: latency and throughput of the screens' main reads at production size.
+//
+//   1. the bootstrap of `npm test` (throwaway PostgreSQL 15 + Redis on loopback, migrate, seed),
+//   2. a YEAR of scan results (scripts/bench/fill-year.ts: ~1.6 M estimates with shapes, windows with
+//      corridor transfer, the alerts the rule raises), then ANALYZE,
+//   3. the server (`server/main.ts`, NODE_ENV=production: no response-schema check, which on the
+//      transfer study's ~10 000 points costs more than the query; see server/config.ts), signed in
+//      as the demo planner (cookie session, as the browser),
+//   4. for each endpoint, autocannon with 50 connections on loopback for --duration seconds (after
+//      a short warm-up): p50 / p95 / p99 latency from every response, requests/s, errors
+//      (non-2xx, socket errors, timeouts), PASS/FAIL against the targets.
+//
+// Endpoints: Watch (GET /api/watch); Trends (GET /api/tracks/north-south/estimates) over a year,
+// a month and a day with maxPoints=700 (the wide Trends screen); the transfer study
+// (GET /api/studies/transfer) over the screen's default 7 days; and GET /api/auth/me, the floor:
+// what any signed-in request costs (session read and touch, person lookup).
+// Targets: p95 ≤ 50 ms for Watch, ≤ 150 ms for a year of Trends, no errors anywhere.
+//
+//   npm run bench:api -- [--days 365] [--duration 10] [--connections 50] [--keep]
+//                        [--database-url URL --redis-url URL]   (an already filled database)
+//                        [--server-root DIR]                    (run another checkout's server)
+//                        [--node-env production|development]
+import os from 'node:os';
+import { parseArgs } from 'node:util';
+import autocannon from 'autocannon';
+import pg from 'pg';
+import { DEMO_PASSWORD, DEMO_PEOPLE } from '../../db/seed';
+import { freePort, loadLine, pad, procStatusMb, repoRoot, scriptPid, signIn, stackEnv, startBenchServices, startServer } from './bench-stack';
+import { fillEstimates } from './fill-year';
+
+const { values: args } = parseArgs({
+  options: {
+    days: { type: 'string' },
+    duration: { type: 'string' },
+    connections: { type: 'string' },
+    keep: { type: 'boolean' },
+    'database-url': { type: 'string' },
+    'redis-url': { type: 'string' },
+    'server-root': { type: 'string' },
+    'node-env': { type: 'string' },
+  },
+});
+
+interface Row {
+  name: string;
+  path: string;
+  targetP95: number | null;
+  p50: number;
+  p95: number;
+  p99: number;
+  rps: number;
+  errors: number;
+  requests: number;
+  kb: number;
+}
+
+function percentile(sorted: number[], p: number): number {
+  if (sorted.length === 0) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.ceil(p * sorted.length) - 1)];
+}
+
+async function cannon(url: string, cookie: string, connections: number, duration: number): Promise<Omit<Row, 'name' | 'path' | 'targetP95'>> {
+  const times: number[] = [];
+  let bytes = 0;
+  const inst = autocannon({ url, connections, duration, headers: { cookie, accept: 'application/json' }, timeout: 30 });
+  inst.on('response', (_client: unknown, status: number, resBytes: number, ms: number) => {
+    times.push(ms);
+    bytes += resBytes;
+    void status;
+  });
+  const r = await inst;
+  times.sort((a, b) => a - b);
+  return {
+    p50: percentile(times, 0.5),
+    p95: percentile(times, 0.95),
+    p99: percentile(times, 0.99),
+    rps: r.requests.total / duration,
+    errors: r.non2xx + r.errors + r.timeouts,
+    requests: r.requests.total,
+    kb: times.length ? bytes / times.length / 1024 : 0,
+  };
+}
+
+async function main() {
+  const days = args.days ? Number(args.days) : 365;
+  const duration = args.duration ? Number(args.duration) : 10;
+  const connections = args.connections ? Number(args.connections) : 50;
+  const nodeEnv = args['node-env'] ?? 'production';
+  const serverRoot = args['server-root'] ?? repoRoot;
+  console.log(`bench:api — ${loadLine()}`);
+  const svc = await startBenchServices({ databaseUrl: args['database-url'], redisUrl: args['redis-url'], keep: args.keep });
+  let server: Awaited<ReturnType<typeof startServer>> | null = null;
+  const pool = new pg.Pool({ connectionString: svc.databaseUrl, max: 4 });
+  try {
+    if (!args['database-url']) {
+      console.log(`filling ${days} days of scan results…`);
+      const s = await fillEstimates(pool, { days, log: (l) => console.log(l) });
+      console.log(
+        `filled: ${s.windows.toLocaleString('en')} windows, ${s.estimates.toLocaleString('en')} estimates, ${s.shapes.toLocaleString('en')} shape rows, ${s.alerts} alerts in ${s.seconds.toFixed(0)} s`,
+      );
+      await pool.query('analyze');
+    }
+    const counts = (
+      await pool.query<{ e: number; a: number }>('select (select count(*) from mode_estimates)::int as e, (select count(*) from alerts)::int as a')
+    ).rows[0];
+    const latest = (await pool.query<{ at: Date }>(`select max(at) as at from mode_estimates e join mode_tracks t on t.id = e.track_id where t.code = 'north-south'`)).rows[0].at;
+    if (!latest) throw new Error('the database holds no north–south estimates');
+
+    const port = await freePort();
+    const env = stackEnv({ databaseUrl: svc.databaseUrl, redisUrl: svc.redisUrl, port, prefix: `keel-bench-${process.pid}`, nodeEnv });
+    server = await startServer(env, serverRoot);
+    const base = `http://127.0.0.1:${port}`;
+    const planner = DEMO_PEOPLE.find((p) => p.role === 'planner')!;
+    const { cookie } = await signIn(base, planner.email, DEMO_PASSWORD);
+
+    const to = latest.toISOString();
+    const ago = (d: number) => new Date(latest.getTime() - d * 86_400_000).toISOString();
+    // the transfer screen asks for the 7 days up to the next whole hour
+    const studyTo = new Date(Math.ceil(latest.getTime() / 3_600_000) * 3_600_000);
+    const trends = (d: number) => `/api/tracks/north-south/estimates?from=${encodeURIComponent(ago(d))}&to=${encodeURIComponent(to)}&maxPoints=700`;
+    const endpoints: Omit<Row, 'p50' | 'p95' | 'p99' | 'rps' | 'errors' | 'requests' | 'kb'>[] = [
+      { name: 'floor: GET /api/auth/me', path: '/api/auth/me', targetP95: null },
+      { name: 'Watch', path: '/api/watch', targetP95: 50 },
+      { name: 'Trends, a year', path: trends(365), targetP95: 150 },
+      { name: 'Trends, a month', path: trends(30), targetP95: null },
+      { name: 'Trends, a day', path: trends(1), targetP95: null },
+      {
+        name: 'Transfer study, 7 days',
+        path: `/api/studies/transfer?track=north-south&from=${encodeURIComponent(new Date(studyTo.getTime() - 7 * 86_400_000).toISOString())}&to=${encodeURIComponent(studyTo.toISOString())}`,
+        targetP95: null,
+      },
+    ];
+    for (const e of endpoints) {
+      const r = await fetch(base + e.path, { headers: { cookie } });
+      if (r.status !== 200) throw new Error(`${e.name}: GET ${e.path} answered ${r.status}: ${(await r.text()).slice(0, 300)}`);
+      await r.arrayBuffer();
+    }
+    const serverPid = scriptPid(server.child.pid!);
+    console.log(
+      `\n${counts.e.toLocaleString('en')} mode estimates, ${counts.a} alerts; server NODE_ENV=${nodeEnv} from ${serverRoot}; ${connections} connections × ${duration} s per endpoint`,
+    );
+    const rows: Row[] = [];
+    for (const e of endpoints) {
+      await cannon(base + e.path, cookie, Math.min(10, connections), 2); // warm-up
+      const load = os.loadavg()[0];
+      const r = await cannon(base + e.path, cookie, connections, duration);
+      rows.push({ ...e, ...r });
+      console.log(`  ${e.name}: done (load ${load.toFixed(1)})`);
+    }
+    const line = (cells: string[]) => console.log(cells.join('  '));
+    console.log('');
+    line([pad('endpoint', 26), pad('p50 ms', 8, true), pad('p95 ms', 8, true), pad('p99 ms', 8, true), pad('req/s', 8, true), pad('requests', 9, true), pad('errors', 7, true), pad('kB/resp', 8, true), pad('target p95', 11, true), 'result']);
+    let allPass = true;
+    for (const r of rows) {
+      const pass = r.errors === 0 && (r.targetP95 === null || r.p95 <= r.targetP95);
+      if (r.targetP95 !== null || r.errors > 0) allPass &&= pass;
+      line([
+        pad(r.name, 26),
+        pad(r.p50.toFixed(1), 8, true),
+        pad(r.p95.toFixed(1), 8, true),
+        pad(r.p99.toFixed(1), 8, true),
+        pad(r.rps.toFixed(0), 8, true),
+        pad(r.requests, 9, true),
+        pad(r.errors, 7, true),
+        pad(r.kb.toFixed(1), 8, true),
+        pad(r.targetP95 === null ? '—' : `≤ ${r.targetP95}`, 11, true),
+        r.targetP95 === null ? (r.errors === 0 ? 'ok (no target)' : 'FAIL (errors)') : pass ? 'PASS' : 'FAIL',
+      ]);
+    }
+    console.log(`\nserver peak memory (VmHWM) ${procStatusMb(serverPid, 'VmHWM')?.toFixed(0) ?? '?'} MB; ${loadLine()}`);
+    console.log(allPass ? 'bench:api: every target met' : 'bench:api: some target missed (see the table; the machine load is above)');
+  } finally {
+    await server?.stop();
+    await pool.end();
+    await svc.stop();
+  }
+}
+
+main().catch((err) => {
+  console.error(err);
+  process.exit(1);
+});
