@@ -433,7 +433,9 @@ export const modeEstimates = pgTable(
   },
   (t) => [
     check('mode_estimates_source', sql`(${t.windowId} is null) <> (${t.fitId} is null)`),
-    index('mode_estimates_track_at_idx').on(t.trackId, t.at),
+    // (track, time) ranges for Trends, and the newest estimate of a track (at desc, id desc) by one
+    // backward probe — with id in the key, no sort of equal times and no pass over other tracks
+    index('mode_estimates_track_at_id_idx').on(t.trackId, t.at, t.id),
     index('mode_estimates_at_idx').on(t.at),
     index('mode_estimates_window_idx').on(t.windowId),
     index('mode_estimates_fit_idx').on(t.fitId),

@@ -303,7 +303,10 @@ interface ModalFilterFit {
 const MYW_ORDER = 3;
 const MYW_FIRST_LAG = 3;
 const mywOrder = () => ((globalThis as Record<string, unknown>).__mywP as number) ?? MYW_ORDER;
-const MYW_EQUATIONS = 9;
+const MYW_MIN_EQUATIONS = 9;
+const MYW_MAX_EQUATIONS = 30;
+const MYW_DECAY_SPAN = 0.75;
+const mywSpan = () => ((globalThis as Record<string, unknown>).__span as number) ?? MYW_DECAY_SPAN;
 /** Lags of the cross-correlations fitted for residue mode shapes (12 s at 5 samples/s). */
 const RESIDUE_LAGS = 60;
 const RESIDUE_OVERLAP = () => ((globalThis as Record<string, unknown>).__ovl as number) ?? 2;
@@ -1402,7 +1405,7 @@ export class AmbientEngine {
       const m = ac.mean[c];
       for (let t = 0; t < W; t++) y[t] += g * (x[off + t] - m);
     }
-    const L = MYW_FIRST_LAG + this.mywEquations();
+    const L = MYW_FIRST_LAG + MYW_MAX_EQUATIONS;
     const groups = Array.from({ length: K }, () => new Float64Array(L));
     for (let g = 0; g < K; g++) {
       const a = g * G;
@@ -1434,33 +1437,44 @@ export class AmbientEngine {
       for (let k = 0; k < L; k++) r[k] = sum[k] / count - (lineAcf[k] * (count - k)) / count;
       return r;
     };
-    let a: Float64Array;
-    try {
-      a = modifiedYuleWalker(acfOf(full, W), mywOrder(), MYW_FIRST_LAG, this.mywEquations());
-    } catch {
-      return null;
-    }
     const fsA = o.analysisRate;
-    let z: Complex | null = null;
-    let best = Infinity;
-    const f1 = poleToMode(z1, fsA).frequencyHz;
-    for (const r of arRoots(a)) {
-      if (!(r.im > 0)) continue;
-      const mm = poleToMode(r, fsA);
-      if (!(mm.dampingPercent > 0 && mm.dampingPercent < o.maxDampingPercent)) continue;
-      const d = Math.abs(mm.frequencyHz - f1);
-      if (d < best) {
-        best = d;
-        z = r;
+    const rFull = acfOf(full, W);
+    // the pole of a fit nearest the candidate's frequency (a decaying complex root)
+    const nearestRoot = (a: Float64Array, fRef: number): Complex | null => {
+      let z: Complex | null = null;
+      let best = Infinity;
+      for (const r of arRoots(a)) {
+        if (!(r.im > 0)) continue;
+        const mm = poleToMode(r, fsA);
+        if (!(mm.dampingPercent > 0 && mm.dampingPercent < o.maxDampingPercent)) continue;
+        const d = Math.abs(mm.frequencyHz - fRef);
+        if (d < best) {
+          best = d;
+          z = r;
+        }
       }
-    }
+      return z;
+    };
+    const fit = (eq: number): Complex | null => {
+      try {
+        return nearestRoot(modifiedYuleWalker(rFull, mywOrder(), MYW_FIRST_LAG, eq), poleToMode(z1, fsA).frequencyHz);
+      } catch {
+        return null;
+      }
+    };
+    // equations spanning about MYW_DECAY_SPAN decay times (1/σ) of the mode, from a first fit
+    const z0 = fit(MYW_MIN_EQUATIONS);
+    if (!z0) return null;
+    const decay = fsA / Math.max(1e-9, -poleToMode(z0, fsA).sigma);
+    const eq = Math.min(MYW_MAX_EQUATIONS, Math.max(MYW_MIN_EQUATIONS, Math.round(mywSpan() * decay)));
+    const z = eq === MYW_MIN_EQUATIONS ? z0 : fit(eq);
     if (!z) return null;
     const reps = groups.map((acc) => {
       const rep = new Float64Array(L);
       for (let k = 0; k < L; k++) rep[k] = full[k] - acc[k];
       let ra: Float64Array | null;
       try {
-        ra = modifiedYuleWalker(acfOf(rep, W - G), mywOrder(), MYW_FIRST_LAG, this.mywEquations());
+        ra = modifiedYuleWalker(acfOf(rep, W - G), mywOrder(), MYW_FIRST_LAG, eq);
       } catch {
         ra = null;
       }
@@ -1538,9 +1552,6 @@ export class AmbientEngine {
     );
   }
 
-  private mywEquations(): number {
-    return ((globalThis as Record<string, unknown>).__mywEq as number) ?? MYW_EQUATIONS;
-  }
 
   /** Normalised spectral trace per band bin: Σ over active channels and segments of |X/σ|². */
   private bandTrace(segs: SegmentData[], active: boolean[], sd: Float64Array): Float64Array {

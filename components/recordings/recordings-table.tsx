@@ -111,11 +111,11 @@ export function RecordingsTable({ recordings, mode, pageSize }: RecordingsTableP
                   onPress={() => t.toggleSort(c.key)}
                   style={({ pressed }) => [styles.sortButton, pressed && styles.pressed]}
                 >
-                  <Text variant="caption" bold color={active ? colors.accent : colors.inkMuted}>
+                  <Text variant="caption" bold color={active ? colors.accent : colors.inkMuted} numberOfLines={1}>
                     {c.title.toUpperCase()}
-                  </Text>
-                  <Text aria-hidden variant="caption" color={active ? colors.accent : colors.rule}>
-                    {dir === 'ascending' ? ' ▴' : dir === 'descending' ? ' ▾' : ' ▴▾'}
+                    <Text aria-hidden variant="caption" color={active ? colors.accent : colors.ruleStrong}>
+                      {dir === 'ascending' ? ' ▴' : dir === 'descending' ? ' ▾' : ' ▴▾'}
+                    </Text>
                   </Text>
                 </Pressable>
               </View>
@@ -161,7 +161,7 @@ export function RecordingsTable({ recordings, mode, pageSize }: RecordingsTableP
   );
 }
 
-const FLEX: Record<string, number> = { file: 2.4, start: 1.35, length: 1.3, channels: 1.1, status: 1.1, uploaded: 1.45 };
+const FLEX: Record<string, number> = { file: 2.3, start: 1.35, length: 1.3, channels: 1.25, status: 1.1, uploaded: 1.45 };
 
 /** Date over time of day (UTC), so a narrow column never breaks a timestamp in the middle. */
 function DateCell({ iso }: { iso: string | null }) {

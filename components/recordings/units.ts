@@ -65,7 +65,9 @@ export function formatDegrees(deg: number): string {
 export function formatWithUnit(v: number, unit: string): string {
   const a = Math.abs(v);
   const digits = a >= 100 ? 0 : a >= 10 ? 1 : a >= 1 ? 2 : a >= 0.01 ? 3 : 4;
-  return `${fixed(v, digits)} ${unitSymbol(unit)}`;
+  const sym = unitSymbol(unit);
+  // The degree sign sits on its number ("2.67°"); other units after a space ("14.2 MW").
+  return sym === '°' ? `${fixed(v, digits)}°` : `${fixed(v, digits)} ${sym}`;
 }
 
 /** Channel units as written after a number (the network stores words such as "deg"). */

@@ -68,6 +68,47 @@ export async function markAnalysisRunning(db: DbOrTx, params: { id: number; now?
   return row;
 }
 
+/**
+ * Marks a scan running unless it has ended (done or failed): a block of a split scan that starts
+ * after another block failed for good must not bring the analysis back. Undefined when ended.
+ */
+export async function markScanRunning(db: DbOrTx, params: { id: number; now?: Date }): Promise<AnalysisRow | undefined> {
+  const [row] = await db
+    .update(analyses)
+    .set({ status: 'running', startedAt: sql`coalesce(${analyses.startedAt}, ${(params.now ?? new Date()).toISOString()}::timestamptz)` })
+    .where(and(eq(analyses.id, params.id), inArray(analyses.status, ['queued', 'running'])))
+    .returning();
+  return row;
+}
+
+/** Raises the progress (never lowers it: blocks of a split scan report counts taken at different times). */
+export async function raiseAnalysisProgress(db: DbOrTx, params: { id: number; progress: number }): Promise<void> {
+  const p = Math.min(1, Math.max(0, params.progress));
+  await db
+    .update(analyses)
+    .set({ progress: sql`greatest(${analyses.progress}, ${p})` })
+    .where(eq(analyses.id, params.id));
+}
+
+/**
+ * Marks a running scan done; undefined when it was not running (already finished by another block
+ * of the same scan, or failed) — so exactly one block finishes it and queues the alert evaluation.
+ */
+export async function finishRunningAnalysis(db: DbOrTx, params: { id: number; timings?: Record<string, number>; now?: Date }): Promise<AnalysisRow | undefined> {
+  const [row] = await db
+    .update(analyses)
+    .set({ status: 'done', progress: 1, error: null, finishedAt: params.now ?? new Date(), timings: params.timings ?? null })
+    .where(and(eq(analyses.id, params.id), eq(analyses.status, 'running')))
+    .returning();
+  return row;
+}
+
+/** Number of windows stored for an analysis. */
+export async function storedWindowCount(db: DbOrTx, params: { analysisId: number }): Promise<number> {
+  const [row] = await db.select({ n: sql<number>`count(*)::int` }).from(scanWindows).where(eq(scanWindows.analysisId, params.analysisId));
+  return row.n;
+}
+
 export async function setAnalysisProgress(db: DbOrTx, params: { id: number; progress: number }): Promise<void> {
   const p = Math.min(1, Math.max(0, params.progress));
   await db.update(analyses).set({ progress: p }).where(eq(analyses.id, params.id));

@@ -17,7 +17,24 @@ export const ANALYSIS_QUEUES = {
 
 const id = (what: string) => z.number({ error: `${what} must be a number` }).int().positive({ error: `${what} must be a positive id` });
 
-export const scanJobSchema = z.object({ analysisId: id('analysisId') }).strict();
+/**
+ * A scan job: the whole scan (no `block`), or one block of its windows — window indices
+ * [block.from, block.to) on the scan's grid — queued by the whole-scan job when the scan is long
+ * enough to be shared between workers (jobs/processors/scan.ts).
+ */
+export const scanJobSchema = z
+  .object({
+    analysisId: id('analysisId'),
+    block: z
+      .object({
+        from: z.number({ error: 'block.from must be a number' }).int().nonnegative({ error: 'block.from must be a window index ≥ 0' }),
+        to: z.number({ error: 'block.to must be a number' }).int().positive({ error: 'block.to must be a window index > 0' }),
+      })
+      .strict()
+      .refine((b) => b.from < b.to, { error: 'block.from must be below block.to' })
+      .optional(),
+  })
+  .strict();
 export type ScanJob = z.infer<typeof scanJobSchema>;
 
 export const fitJobSchema = z.object({ analysisId: id('analysisId') }).strict();
@@ -85,6 +102,16 @@ export async function enqueueScan(queues: Pick<AnalysisQueues, 'scan'>, payload:
   const p = scanJobSchema.parse(payload);
   const job = await queues.scan.add('scan', p, { jobId: `scan-${p.analysisId}` });
   return job.id!;
+}
+
+/** Queues the blocks of a scan (idempotent: one job id per block start). Returns the job ids. */
+export async function enqueueScanBlocks(queues: Pick<AnalysisQueues, 'scan'>, analysisId: number, blocks: { from: number; to: number }[]): Promise<string[]> {
+  const jobs = blocks.map((block) => {
+    const data = scanJobSchema.parse({ analysisId, block });
+    return { name: 'scan-block', data, opts: { jobId: `scan-${analysisId}-w${block.from}` } };
+  });
+  const added = await queues.scan.addBulk(jobs);
+  return added.map((j) => j.id!);
 }
 
 export async function enqueueFit(queues: Pick<AnalysisQueues, 'fit'>, payload: FitJob): Promise<string> {

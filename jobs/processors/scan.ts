@@ -16,12 +16,13 @@ import { listTracks } from '../../db/queries/alerts';
 import {
   channelIdsByName,
   corridorChannelNames,
-  finishAnalysis,
+  finishRunningAnalysis,
   getAnalysis,
   getRecording,
-  markAnalysisRunning,
+  markScanRunning,
+  raiseAnalysisProgress,
   recordingChannelList,
-  setAnalysisProgress,
+  storedWindowCount,
   storedWindowStarts,
   storeScanWindow,
   type AnalysisRow,
@@ -31,7 +32,7 @@ import { checkAmbientOptions, createAmbientScanner, type AmbientOptionsInput, ty
 import { ModalInputError } from '../../modal/errors';
 import { assignTracks, type ModeTrackSpec } from '../../modal/tracking';
 import type { AmbientMode, AmbientWindowResult } from '../../modal/types';
-import { enqueueEvaluateAlerts, scanJobSchema } from './analysis-queues';
+import { enqueueEvaluateAlerts, enqueueScanBlocks, scanJobSchema } from './analysis-queues';
 import { isLastAttempt, type AnalysisContext, type JobLike } from './analysis-context';
 import { failAnalysisWith, publishProgress } from './analysis-progress';
 
@@ -45,6 +46,8 @@ export interface ScanOutcome {
   windows: number;
   storedNow: number;
   skippedExisting: number;
+  /** Blocks queued (a whole scan that was split), else 0. */
+  blocks: number;
 }
 
 /** Windows of a record of `rawSamples` samples (the estimator's own count). */
@@ -98,7 +101,7 @@ export async function runScan(ctx: AnalysisContext, job: JobLike): Promise<ScanO
   if (!analysis) refuse(`Analysis ${analysisId} does not exist (deleted?)`);
   if (analysis.kind !== 'scan') refuse(`Analysis ${analysisId} is a ${analysis.kind}, not a scan`);
   try {
-    return await scan(ctx, job, analysis);
+    return await scan(ctx, job, analysis, parsed.data.block ?? null);
   } catch (err) {
     // refusals of the input (estimator options, channels or interval not in the recording) are final
     const bad = err instanceof UnrecoverableError || err instanceof ModalInputError || (err as { code?: unknown }).code === 'RECORDING_SAMPLES';
@@ -111,7 +114,34 @@ export async function runScan(ctx: AnalysisContext, job: JobLike): Promise<ScanO
   }
 }
 
-async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): Promise<ScanOutcome> {
+/**
+ * Seconds of window starts per block when a scan is shared between workers (default 3600: an hour
+ * of windows, 60 at the default 1-minute step). KEEL_SCAN_BLOCK_SECONDS=0 never splits.
+ */
+export function scanBlockSeconds(env: NodeJS.ProcessEnv = process.env): number {
+  const raw = env.KEEL_SCAN_BLOCK_SECONDS;
+  if (raw === undefined || raw === '') return 3600;
+  const v = Number(raw);
+  if (!Number.isFinite(v) || v < 0) throw new Error(`KEEL_SCAN_BLOCK_SECONDS must be a number of seconds ≥ 0 (got "${raw}")`);
+  return v;
+}
+
+/** Window-index blocks [from, to) of `total` windows, `perBlock` each (the last may be shorter). */
+export function scanBlocks(total: number, perBlock: number): { from: number; to: number }[] {
+  if (total <= 0) return [];
+  const n = Math.max(1, Math.floor(perBlock));
+  const out: { from: number; to: number }[] = [];
+  for (let from = 0; from < total; from += n) out.push({ from, to: Math.min(total, from + n) });
+  return out;
+}
+
+/**
+ * The whole scan (block null) or one block of it. A whole scan longer than one block is split: this
+ * job queues one job per block (any worker takes them; each block resumes at its first unstored
+ * window, like a restarted scan) and ends. Whichever block finds every window stored finishes the
+ * analysis — exactly one does (finishRunningAnalysis) — and queues the alert evaluation.
+ */
+async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow, block: { from: number; to: number } | null): Promise<ScanOutcome> {
   const t0 = Date.now();
   const { db } = ctx;
   const recording = await getRecording(db, { id: analysis.recordingId });
@@ -154,18 +184,45 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): 
   const stepRaw = o.stepSamples * o.factor;
   const stepMs = (stepRaw / rate) * 1000;
   const startMsOf = (k: number) => recStartMs + Math.round(k * stepMs);
-  const stored = await storedWindowStarts(db, { analysisId: analysis.id });
-  let first = 0;
-  while (first < total && stored.has(startMsOf(first))) first++;
 
-  await markAnalysisRunning(db, { id: analysis.id });
-  let done = stored.size;
+  // a whole scan longer than one block: queue its blocks and leave the work to them
+  const blockSeconds = scanBlockSeconds();
+  const blocks = block === null && blockSeconds > 0 ? scanBlocks(total, blockSeconds / o.stepSeconds) : [];
+  if (blocks.length > 1) {
+    const running = await markScanRunning(db, { id: analysis.id });
+    if (!running) return { analysisId: analysis.id, windows: total, storedNow: 0, skippedExisting: 0, blocks: 0 };
+    const stored = await storedWindowCount(db, { analysisId: analysis.id });
+    await raiseAnalysisProgress(db, { id: analysis.id, progress: stored / total });
+    await publishProgress(ctx, { ...running, progress: Math.max(running.progress, stored / total) });
+    await enqueueScanBlocks(ctx.queues, analysis.id, blocks);
+    ctx.log.info(`scan ${analysis.id}: ${total} windows in ${blocks.length} blocks of up to ${blocks[0].to} windows`);
+    return { analysisId: analysis.id, windows: total, storedNow: 0, skippedExisting: 0, blocks: blocks.length };
+  }
+  const range = block ?? { from: 0, to: total };
+  if (range.to > total) refuse(`Scan ${analysis.id}: block ${range.from}–${range.to} lies past the scan's ${total} windows`);
+
+  const running = await markScanRunning(db, { id: analysis.id });
+  if (!running) {
+    // ended meanwhile: another block finished it, or one failed for good (its reason is kept)
+    return { analysisId: analysis.id, windows: total, storedNow: 0, skippedExisting: 0, blocks: 0 };
+  }
+  const stored = await storedWindowStarts(db, { analysisId: analysis.id });
+  let first = range.from;
+  while (first < range.to && stored.has(startMsOf(first))) first++;
+  const inRange = () => {
+    let n = 0;
+    for (let k = range.from; k < range.to; k++) if (stored.has(startMsOf(k))) n++;
+    return n;
+  };
+
   let lastProgressAt = 0;
   const progress = async (force = false) => {
     if (!force && Date.now() - lastProgressAt < PROGRESS_EVERY_MS) return;
     lastProgressAt = Date.now();
-    const p = Math.min(1, done / total);
-    await setAnalysisProgress(db, { id: analysis.id, progress: p });
+    // the whole scan's share, whichever worker stored the windows
+    const all = block === null ? stored.size : await storedWindowCount(db, { analysisId: analysis.id });
+    const p = Math.min(1, all / total);
+    await raiseAnalysisProgress(db, { id: analysis.id, progress: p });
     await job.updateProgress(p).catch(() => undefined);
     await publishProgress(ctx, { ...analysis, status: 'running', progress: p, error: null });
   };
@@ -173,7 +230,7 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): 
 
   let storedNow = 0;
   let skippedExisting = 0;
-  if (first < total) {
+  if (first < range.to) {
     const streamStartRaw = first * stepRaw;
     const seconds = Math.ceil(totalSamples / rate);
     const flowSums = new Map(corridors.filter((c) => c.flow).map((c) => [c.code, new SecondSums(seconds)]));
@@ -188,6 +245,7 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): 
 
     const flush = async () => {
       for (const { w, k } of pending.splice(0)) {
+        if (k >= range.to) continue; // past this block: another block's window
         const startMs = startMsOf(k);
         if (stored.has(startMs)) {
           skippedExisting++;
@@ -216,18 +274,21 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): 
           angleDeg,
           estimates,
         });
-        if (res.stored) {
-          storedNow++;
-          stored.add(startMs);
-        } else skippedExisting++;
-        done = stored.size;
+        if (res.stored) storedNow++;
+        else skippedExisting++;
+        stored.add(startMs);
         await progress();
       }
     };
 
     const chunkRaw = Math.round(CHUNK_SECONDS * rate);
     let next = streamStartRaw; // next raw sample index to feed
-    while (next < totalSamples) {
+    // A block before the last stops reading once its last window came out (the scanner needs a
+    // little past the window's end for its filters, so whole chunks are fed rather than exactly up
+    // to the end). The block that reaches the recording's end reads to the end and finishes the
+    // scanner, which checks the stream as a whole (no valid sample, a constant channel).
+    const toEnd = range.to === total;
+    while (next < totalSamples && (toEnd || first + emitted < range.to)) {
       const endIdx = Math.min(totalSamples, next + chunkRaw);
       // [from, to] both inclusive, in epoch seconds on the recording's exact grid
       const rec = await readRecordingSamples(db, {
@@ -269,18 +330,24 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow): 
       next = endIdx;
       await flush();
     }
-    scanner.finish();
+    if (toEnd) scanner.finish();
     await flush();
   }
-  done = stored.size;
   await progress(true);
-  if (stored.size < total) {
-    throw new Error(`Scan ${analysis.id} stored ${stored.size} of ${total} windows; retrying`);
+  const mine = inRange();
+  if (mine < range.to - range.from) {
+    throw new Error(`Scan ${analysis.id} stored ${mine} of the ${range.to - range.from} windows from window ${range.from}; retrying`);
   }
-  const finished = await finishAnalysis(db, { id: analysis.id, timings: { totalMs: Date.now() - t0, windows: total, storedNow } });
-  if (finished) await publishProgress(ctx, finished);
-  await enqueueEvaluateAlerts(ctx.queues, { analysisId: analysis.id });
-  return { analysisId: analysis.id, windows: total, storedNow, skippedExisting };
+  const all = block === null ? stored.size : await storedWindowCount(db, { analysisId: analysis.id });
+  if (all >= total) {
+    const startedAt = running.startedAt?.getTime() ?? t0;
+    const finished = await finishRunningAnalysis(db, { id: analysis.id, timings: { totalMs: Date.now() - startedAt, windows: total, storedNow } });
+    if (finished) {
+      await publishProgress(ctx, finished);
+      await enqueueEvaluateAlerts(ctx.queues, { analysisId: analysis.id });
+    }
+  }
+  return { analysisId: analysis.id, windows: total, storedNow, skippedExisting, blocks: 0 };
 }
 
 /**

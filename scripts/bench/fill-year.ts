@@ -503,10 +503,9 @@ export async function fillEstimates(pool: pg.Pool, opts: FillOptions = {}): Prom
       }
       summary.days++;
       if (opts.alerts ?? true) {
-        for (const t of TRACKS) {
-          const transitions = await evaluateTrackAlerts(db, { trackId: trackIds.get(t)!, analysisId });
-          summary.alerts += transitions.filter((x) => x.event === 'opened').length;
-        }
+        // the evaluation job's work after this day's scan (one transaction and lock per track)
+        const results = await Promise.all(TRACKS.map((t) => evaluateTrackAlerts(db, { trackId: trackIds.get(t)!, analysisId })));
+        for (const transitions of results) summary.alerts += transitions.filter((x) => x.event === 'opened').length;
       }
       if (performance.now() - lastLog > 15_000 || d === days - 1) {
         lastLog = performance.now();
@@ -531,14 +530,13 @@ async function main() {
       seed: { type: 'string' },
       'no-alerts': { type: 'boolean' },
       'no-bulk': { type: 'boolean' },
-      analyze: { type: 'boolean' },
     },
   });
   const url = process.env.DATABASE_URL;
   if (!url) throw new Error('Set DATABASE_URL to a migrated and seeded database');
   const end = values.end ? Date.parse(`${values.end}T00:00:00Z`) / 1000 : undefined;
   if (values.end && !Number.isFinite(end)) throw new Error(`--end must be a date YYYY-MM-DD (got ${values.end})`);
-  const pool = new pg.Pool({ connectionString: url, max: 3 });
+  const pool = new pg.Pool({ connectionString: url, max: 5 });
   try {
     console.log(`load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')} on ${os.cpus().length} CPUs`);
     const s = await fillEstimates(pool, {
