@@ -5,9 +5,10 @@
 //   and marked) ─ angle channels minus the angle reference ─ linear-phase FIR anti-alias
 //   decimation to the analysis rate (only kept outputs computed) ─ DC blocker at bandHz[0]/20 ─
 //   per-block sums:
-//     • lag products Σ x[t]·x[t−k], k = 0…maxLag, per channel (blocks of `blockSamples`, so a
-//       window's autocovariances are sums of its blocks' sums: each sample's lag products are
-//       computed once, not once per window);
+//     • lag products Σ x[t]·x[t−k], k = 0…maxLag, per channel, and the zero-lag products of
+//       every pair of channels (blocks of `blockSamples`, so a window's autocovariances and
+//       correlation matrix are sums of its blocks' sums: each sample's products are computed
+//       once, not once per window);
 //     • windowed FFTs of the Welch segments (hop = half a segment) for spectra and mode shapes;
 //     • raw-data quality summaries.
 //   Per window:
@@ -16,14 +17,35 @@
 //        autocovariances so they neither hide nor bias the natural modes next to them;
 //     3. stage 1: one AR polynomial (Levinson) or matrix pencil on the autocorrelation pooled over
 //        all channels with equal weights → candidate poles in band, damped less than
-//        maxDampingPercent and standing at least minStrength above the spectral floor;
-//     4. stage 2, per candidate: the same fit on the autocorrelation pooled with channel weights =
-//        each channel's share of its variance at the candidate's frequency, so channels where the
-//        mode is buried under other modes and noise do not bias it (on simulated Tarrow data this
-//        took the north–south damping bias at 3 % from +0.35 to ≈ 0 points); the pole is followed
-//        from stage 1 by Newton's method;
-//     5. jackknife interval, mode shape (first eigenvector of the cross-spectral matrix at the
-//        mode's bin) and the forced test of the AR pole.
+//        maxDampingPercent;
+//     4. stage 2, per candidate (strongest first), Yule-Walker method: the MODAL FILTER — the
+//        channel combination y = Σ w_c·x_c/σ_c that puts the largest share of its variance at the
+//        candidate's frequency (w: leading generalised eigenvector of the real cross-spectral
+//        matrix at that bin against the channels' correlation matrix; the other modes, which carry
+//        most of the correlation, are nulled in y) — and a low-order MODIFIED Yule-Walker fit of
+//        y's autocovariance (AR order 3, equations from lag 3: modal/ar.ts modifiedYuleWalker).
+//        A pooled high-order AR model of all channels splits a well-damped mode that is weak in
+//        most channels into two or three poles (measured on simulated Tarrow data: the 7.5 %
+//        east–west mode came out as ≈0.52 + 0.59 Hz in most windows, damping bias +1.4 points,
+//        spread 1.6; the 10 % Greyscar local mode, seen in two channels of 21, was never found);
+//        y holds one mode on a nearly flat floor, which three poles describe. The candidate must
+//        stand minStrength above the floor of y's spectrum; the other stage-1 poles of a peak
+//        already estimated are skipped, and estimates closer than a half-power half-width are one
+//        mode (the one standing higher stays). acf-matrix-pencil, or a filter without a pole near
+//        the candidate: the stage-1 fit on the autocorrelation pooled with channel weights = each
+//        channel's share of its variance at the candidate's frequency, the pole followed by Newton;
+//     5. jackknife interval (replicates refit y's autocovariance without each group's lag
+//        products, with the same filter), the forced test of the pole, and the MODE SHAPE from
+//        residues: the output covariance of a linear system driven by white noise is
+//        R(τ) = C·e^{Aτ}·P·Cᵀ = Σ_k (C·v_k)·b_kᵀ·e^{λ_k τ} (τ ≥ 0), so in every channel's
+//        cross-correlation with y the coefficient of the mode's own exponential is proportional to
+//        the eigenvector C·v; fitting the cross-correlations (lags 1 … 6 s) on the exponentials of
+//        all reported modes and the remaining stage-1 poles separates the mode from the spectral
+//        tail of a strong neighbour, which bends the first eigenvector of the cross-spectral matrix
+//        (measured: 20–25° on the Highmoor channels of the east–west mode, whose north–south tail
+//        is as large as its own peak there; with residues ≈ 4°, and ≈ 1° for the north–south
+//        mode). Without a filter (acf-matrix-pencil): the first eigenvector of the cross-spectral
+//        matrix at the mode's bin.
 //
 // Confidence intervals: delete-a-group jackknife (textbook: Efron & Tibshirani 1993, §11; for
 // dependent data the groups are contiguous blocks, Künsch 1989). The window is cut into K
@@ -261,6 +283,10 @@ interface LongGap {
 interface BlockData {
   /** lag[c·(maxLag+1) + k] = Σ_{t∈block} x_c[t]·x_c[t−k] (t − k ≥ 0). */
   lag: Float64Array;
+  /** cross[c·nCh + d] = Σ_{t∈block} x_c[t]·x_d[t] for d < c (the modal filter's correlation matrix). */
+  cross: Float64Array;
+  /** Σ_{t∈block} x_c[t]. */
+  sum: Float64Array;
   /** Σ of squared (pre-filter) derived samples, for the constant-channel test. */
   rawSq: Float64Array;
 }
@@ -299,20 +325,38 @@ interface ModalFilterFit {
   y: Float64Array;
 }
 
-/** Modified Yule-Walker of the modal-filter output: AR order, first equation lag, equations. */
+/**
+ * Modified Yule-Walker fit of the modal-filter output (modal/ar.ts modifiedYuleWalker): AR order 3
+ * (the mode's pole pair and one real pole for the slow drift left in y), equations from lag 3
+ * (lags 0–2 carry the measurement noise and the moving-average part of a sampled mode). The
+ * equations span MYW_DECAY_SPAN decay times 1/σ of the mode (from a first fit with the fewest),
+ * between MYW_MIN_EQUATIONS and MYW_MAX_EQUATIONS lags: a well-damped mode's correlation is gone
+ * after a few lags, a lightly damped one's carries information much longer. Chosen on simulated
+ * Tarrow data (500–3000 MW, seeds apart from the benchmark's): orders 4–6 or more equations gave
+ * a larger spread for the east–west and Greyscar modes, fewer a bias of −0.6 points on a 9 %
+ * north–south mode.
+ */
 const MYW_ORDER = 3;
 const MYW_FIRST_LAG = 3;
-const mywOrder = () => ((globalThis as Record<string, unknown>).__mywP as number) ?? MYW_ORDER;
 const MYW_MIN_EQUATIONS = 9;
 const MYW_MAX_EQUATIONS = 30;
-const MYW_DECAY_SPAN = 0.75;
-const mywSpan = () => ((globalThis as Record<string, unknown>).__span as number) ?? MYW_DECAY_SPAN;
-/** Lags of the cross-correlations fitted for residue mode shapes (12 s at 5 samples/s). */
-const RESIDUE_LAGS = 60;
-const RESIDUE_OVERLAP = () => ((globalThis as Record<string, unknown>).__ovl as number) ?? 2;
-const RESIDUE_SHAPES = () => (globalThis as Record<string, unknown>).__noResidue === undefined;
-/** Diagonal loading of the correlation matrix in the modal filter (relative to unit variances). */
+const MYW_DECAY_SPAN = 0.5;
+/**
+ * Diagonal loading of the correlation matrix in the modal filter (relative to unit variances):
+ * keeps the filter from exploiting directions with almost no variance (differences of bus
+ * frequencies that only measurement noise separates).
+ */
 const MODAL_FILTER_LOADING = 1e-3;
+/** The floor of the modal-filter output's spectrum is the median over every this-many-th band bin. */
+const SPEC_FLOOR_STRIDE = 6;
+/** Span of the cross-correlation lags fitted for residue mode shapes, s (30 lags at 5 samples/s). */
+const RESIDUE_SECONDS = 6;
+/**
+ * A stage-1 pole whose half-power band comes within this many sums of half-widths of a reported
+ * mode stands for (part of) that mode's peak and is left out of the residue basis: two nearly
+ * collinear exponentials would share the mode's coefficient between them.
+ */
+const RESIDUE_OVERLAP = 2;
 
 /** Screening threshold of the periodogram/Welch ratio Λ for line candidates. */
 const FORCED_SCREEN = 12;
@@ -688,9 +732,25 @@ export class AmbientEngine {
         lag[c * L + k] = a;
       }
     }
+    const C = this.nCh;
+    const cross = new Float64Array(C * C);
+    const sum = new Float64Array(C);
+    const xs = this.series.map((s) => s.data.subarray(t0 - s.base, t0 - s.base + B));
+    for (let c = 0; c < C; c++) {
+      const xc = xs[c];
+      let a = 0;
+      for (let t = 0; t < B; t++) a += xc[t];
+      sum[c] = a;
+      for (let d = 0; d < c; d++) {
+        const xd = xs[d];
+        let p = 0;
+        for (let t = 0; t < B; t++) p += xc[t] * xd[t];
+        cross[c * C + d] = p;
+      }
+    }
     const rawSq = this.blockRawSq.slice();
     this.blockRawSq.fill(0);
-    this.blocks.set(b, { lag, rawSq });
+    this.blocks.set(b, { lag, cross, sum, rawSq });
   }
 
   private segment(sIdx: number): SegmentData {
@@ -1054,7 +1114,8 @@ export class AmbientEngine {
     const modes: AmbientMode[] = [];
     const trace = this.bandTrace(segs, ac.active, ac.sd);
     const floor = medianOf(trace);
-    const strengthAt = (bin: number): number => (floor > 0 ? trace[bin] / floor : 0);
+    // strength: amplitude over the floor's, √ of the density ratio (see AmbientMode.strength)
+    const strengthAt = (bin: number): number => (floor > 0 ? Math.sqrt(trace[bin] / floor) : 0);
     // a line removed from the autocorrelation can leave a residual pole next to it
     const lineGuardHz = Math.max(3 / T, (1.5 * o.analysisRate) / o.segmentSamples);
     const taken: Complex[] = [];
@@ -1062,13 +1123,18 @@ export class AmbientEngine {
     const natural: AmbientMode[] = [];
     const filterOf = new Map<Complex, ModalFilterFit>();
     const poleOf = new Map<AmbientMode, Complex>();
-    for (const z1 of stage1.poles) {
-      if (!(z1.im > 0)) continue;
-      const m1 = poleToMode(z1, fsA);
-      if (m1.frequencyHz < lo || m1.frequencyHz > hi) continue;
+    const binOf = (f: number) => Math.min(this.kHi, Math.max(this.kLo, Math.round((f * this.nfft) / fsA))) - this.kLo;
+    // candidates strongest first, so that the other poles of a split peak find their mode taken
+    const candidates = stage1.poles
+      .filter((z1) => z1.im > 0)
+      .map((z1) => ({ z1, m1: poleToMode(z1, fsA) }))
       // a stable system's ambient response decays; a non-decaying pole is a line (searched above)
-      if (!(m1.dampingPercent > 0 && m1.dampingPercent < o.maxDampingPercent)) continue;
-      const bin1 = Math.min(this.kHi, Math.max(this.kLo, Math.round((m1.frequencyHz * this.nfft) / fsA))) - this.kLo;
+      .filter(({ m1 }) => m1.frequencyHz >= lo && m1.frequencyHz <= hi && m1.dampingPercent > 0 && m1.dampingPercent < o.maxDampingPercent)
+      .sort((a, b) => strengthAt(binOf(b.m1.frequencyHz)) - strengthAt(binOf(a.m1.frequencyHz)));
+    for (const { z1, m1 } of candidates) {
+      const bin1 = binOf(m1.frequencyHz);
+      // another pole of a peak already estimated (an AR model splits a broad peak)
+      if (o.method === 'yule-walker' && natural.some((k) => Math.abs(k.frequencyHz - m1.frequencyHz) < -k.sigma / (2 * Math.PI))) continue;
       let z = z1;
       let repPoles = stage1.reps;
       let filter: ModalFilterFit | null = null;
@@ -1076,11 +1142,12 @@ export class AmbientEngine {
         // stage 2 (Yule-Walker): modal filter + modified Yule-Walker (see the file header); poles
         // on the floor of the filter output's spectrum model noise, not a mode
         R0 ??= this.channelCorrelation(ws, ac);
-        filter = this.modalFilterFit(ws, segs, bin1, z1, ac, lines, R0);
-        if (filter) {
-          if (filter.strengthAt(bin1) < o.minStrength) continue;
-          z = filter.z;
-          repPoles = filter.reps;
+        const fit = this.modalFilterFit(ws, segs, bin1, z1, ac, lines, R0);
+        if (fit && fit.z === null) continue; // on the floor of the filter output's spectrum
+        if (fit) {
+          filter = fit;
+          z = fit.z;
+          repPoles = fit.reps;
         }
       }
       if (!filter) {
@@ -1128,7 +1195,7 @@ export class AmbientEngine {
         fCi = [lo, hi];
         dCi = [0, o.maxDampingPercent];
       }
-      const bin = Math.min(this.kHi, Math.max(this.kLo, Math.round((m.frequencyHz * this.nfft) / fsA))) - this.kLo;
+      const bin = binOf(m.frequencyHz);
       const strength = filter ? filter.strengthAt(bin) : strengthAt(bin);
       if (strength < o.minStrength) continue;
       const sh = this.shapeAndForced(segs, segIdx, bin, m.frequencyHz, m.dampingPercent, ac.active, ac.sd, ws, filter?.w ?? null);
@@ -1154,23 +1221,22 @@ export class AmbientEngine {
     for (const cand of natural) {
       if (!modes.some((k) => Math.abs(k.frequencyHz - cand.frequencyHz) < Math.max(hw(k), hw(cand)))) modes.push(cand);
     }
-    if (RESIDUE_SHAPES()) {
-      // residue shapes: exponentials of every reported mode, plus the stage-1 poles that stand for
-      // no reported mode (out of band, on the floor), so each mode's coefficient is its own
-      const own = modes.map((k) => poleOf.get(k)!);
-      const others = stage1.poles.filter((p) => {
-        if (p.im < 0) return false;
-        if (p.im === 0) return true;
-        const pm = poleToMode(p, fsA);
-        return !modes.some((k) => Math.abs(k.frequencyHz - pm.frequencyHz) < RESIDUE_OVERLAP() * (hw(k) + -pm.sigma / (2 * Math.PI)));
-      });
-      modes.forEach((k, i) => {
-        const f = filterOf.get(own[i]);
-        if (!f) return;
-        const res = this.residueShape(ws, ac, f.y, [own[i], ...own.filter((_, j) => j !== i), ...others]);
-        if (res) k.shape = res;
-      });
-    }
+    // Residue shapes (modes from the modal filter): the basis is every reported mode's pole plus
+    // the stage-1 poles that stand for no reported mode (real, out of band, on the floor away from
+    // the modes), so each mode's coefficient is its own.
+    const own = modes.map((k) => poleOf.get(k)!);
+    const others = stage1.poles.filter((p) => {
+      if (p.im < 0) return false;
+      if (p.im === 0) return true;
+      const pm = poleToMode(p, fsA);
+      return !modes.some((k) => Math.abs(k.frequencyHz - pm.frequencyHz) < RESIDUE_OVERLAP * (hw(k) - pm.sigma / (2 * Math.PI)));
+    });
+    modes.forEach((k, i) => {
+      const f = filterOf.get(own[i]);
+      if (!f) return;
+      const shape = this.residueShape(ws, ac, f.y, [own[i], ...own.filter((_, j) => j !== i), ...others]);
+      if (shape) k.shape = shape;
+    });
     for (const ln of lines) {
       // a forced oscillation has no damping of its own: reported as 0 % with a zero-width interval;
       // its frequency is resolved to about ±1/(2T) by the full-window periodogram
@@ -1296,31 +1362,29 @@ export class AmbientEngine {
    */
   private channelCorrelation(ws: number, ac: WindowAcf): Float64Array {
     const C = this.nCh;
-    const W = this.o.windowSamples;
+    const o = this.o;
+    const W = o.windowSamples;
+    const B = o.blockSamples;
     const R = new Float64Array(C * C);
-    const xs: Float64Array[] = [];
-    for (let c = 0; c < C; c++) {
-      const s = this.series[c];
-      xs.push(s.data.subarray(ws - s.base, ws - s.base + W));
+    const sum = new Float64Array(C);
+    const b0 = ws / B;
+    for (let b = b0; b < b0 + W / B; b++) {
+      const blk = this.blocks.get(b)!;
+      for (let k = 0; k < C * C; k++) R[k] += blk.cross[k];
+      for (let c = 0; c < C; c++) sum[c] += blk.sum[c];
     }
     for (let c = 0; c < C; c++) {
-      R[c * C + c] = 1;
-      if (!ac.active[c]) continue;
-      const xc = xs[c];
-      const mc = ac.mean[c];
       for (let d = 0; d < c; d++) {
-        if (!ac.active[d]) continue;
-        const xd = xs[d];
-        const md = ac.mean[d];
-        let acc = 0;
-        for (let t = 0; t < W; t++) acc += (xc[t] - mc) * (xd[t] - md);
-        const v = acc / (W * ac.sd[c] * ac.sd[d]);
+        // centred: Σ(x_c − m_c)(x_d − m_d) = Σ x_c·x_d − W·m_c·m_d, with m = Σx/W
+        const v = ac.active[c] && ac.active[d] ? (R[c * C + d] - (sum[c] * sum[d]) / W) / (W * ac.sd[c] * ac.sd[d]) : 0;
         R[c * C + d] = v;
         R[d * C + c] = v;
       }
+      R[c * C + c] = 1;
     }
     return R;
   }
+
 
   /**
    * Stage 2 of the Yule-Walker method for one candidate: the modal filter — the channel
@@ -1339,7 +1403,7 @@ export class AmbientEngine {
     ac: WindowAcf,
     lines: LineInfo[],
     R0: Float64Array,
-  ): ModalFilterFit | null {
+  ): ModalFilterFit | { z: null; strengthAt: (bin: number) => number } | null {
     const o = this.o;
     const C = this.nCh;
     const nb = this.nb;
@@ -1351,15 +1415,15 @@ export class AmbientEngine {
     const n = chans.length;
     // Re S at the bin (normalised channels), summed over segments; R₀ with a little diagonal loading
     const A = new Float64Array(n * n);
+    const vr = new Float64Array(n);
+    const vi = new Float64Array(n);
     for (const seg of segs) {
       for (let i = 0; i < n; i++) {
-        const ri = seg.re[chans[i] * nb + bin] / ac.sd[chans[i]];
-        const ii = seg.im[chans[i] * nb + bin] / ac.sd[chans[i]];
-        for (let j = 0; j <= i; j++) {
-          const rj = seg.re[chans[j] * nb + bin] / ac.sd[chans[j]];
-          const ij = seg.im[chans[j] * nb + bin] / ac.sd[chans[j]];
-          A[i * n + j] += ri * rj + ii * ij;
-        }
+        vr[i] = seg.re[chans[i] * nb + bin] / ac.sd[chans[i]];
+        vi[i] = seg.im[chans[i] * nb + bin] / ac.sd[chans[i]];
+      }
+      for (let i = 0; i < n; i++) {
+        for (let j = 0; j <= i; j++) A[i * n + j] += vr[i] * vr[j] + vi[i] * vi[j];
       }
     }
     let traceA = 0;
@@ -1379,22 +1443,30 @@ export class AmbientEngine {
     }
     const w = new Float64Array(C);
     chans.forEach((c, i) => (w[c] = gen.w[i]));
-    // the filter output's Welch spectrum over the band, for the peak-to-floor strength
-    const spec = new Float64Array(nb);
-    for (const seg of segs) {
-      for (let j = 0; j < nb; j++) {
+    // the filter output's Welch density at a band bin (memoised); its floor is the median over
+    // every SPEC_FLOOR_STRIDE-th bin of the band (a floor needs no more)
+    const spec = new Float64Array(nb).fill(-1);
+    const gains = chans.map((c) => w[c] / ac.sd[c]);
+    const specAt = (j: number): number => {
+      if (spec[j] >= 0) return spec[j];
+      let p = 0;
+      for (const seg of segs) {
         let yr = 0;
         let yi = 0;
-        for (const c of chans) {
-          const g = w[c] / ac.sd[c];
-          yr += g * seg.re[c * nb + j];
-          yi += g * seg.im[c * nb + j];
+        for (let i = 0; i < n; i++) {
+          yr += gains[i] * seg.re[chans[i] * nb + j];
+          yi += gains[i] * seg.im[chans[i] * nb + j];
         }
-        spec[j] += yr * yr + yi * yi;
+        p += yr * yr + yi * yi;
       }
-    }
-    const specFloor = medianOf(spec);
-    const strengthAt = (j: number): number => (specFloor > 0 ? spec[j] / specFloor : 0);
+      spec[j] = p;
+      return p;
+    };
+    const floorBins: number[] = [];
+    for (let j = 0; j < nb; j += SPEC_FLOOR_STRIDE) floorBins.push(specAt(j));
+    const specFloor = medianOf(floorBins);
+    const strengthAt = (j: number): number => (specFloor > 0 ? Math.sqrt(specAt(j) / specFloor) : 0);
+    if (strengthAt(bin) < o.minStrength) return { z: null, strengthAt };
     // y over the window, centred
     const y = new Float64Array(W);
     for (const c of chans) {
@@ -1405,40 +1477,49 @@ export class AmbientEngine {
       const m = ac.mean[c];
       for (let t = 0; t < W; t++) y[t] += g * (x[off + t] - m);
     }
-    const L = MYW_FIRST_LAG + MYW_MAX_EQUATIONS;
-    const groups = Array.from({ length: K }, () => new Float64Array(L));
-    for (let g = 0; g < K; g++) {
-      const a = g * G;
-      const b = a + G;
-      const acc = groups[g];
-      for (let k = 0; k < L; k++) {
-        let sum = 0;
-        for (let t = Math.max(a, k); t < b; t++) sum += y[t] * y[t - k];
-        acc[k] = sum;
+    // lag-product sums of y per jackknife group, lags 0…L−1 (grown on demand)
+    let L = 0;
+    let groups: Float64Array[] = [];
+    let full = new Float64Array(0);
+    let lineAcf = new Float64Array(0);
+    const ensureLags = (need: number): void => {
+      if (need <= L) return;
+      const grown = groups.length ? groups : Array.from({ length: K }, () => new Float64Array(0));
+      groups = grown.map((old, g) => {
+        const acc = new Float64Array(need);
+        acc.set(old);
+        const a = g * G;
+        const b = a + G;
+        for (let k = L; k < need; k++) {
+          let sum = 0;
+          for (let t = Math.max(a, k); t < b; t++) sum += y[t] * y[t - k];
+          acc[k] = sum;
+        }
+        return acc;
+      });
+      L = need;
+      full = new Float64Array(L);
+      for (const acc of groups) for (let k = 0; k < L; k++) full[k] += acc[k];
+      // a detected line adds (|a_y|²/2)·cos(ωk) per sample pair, a_y its complex amplitude in y
+      lineAcf = new Float64Array(L);
+      for (const ln of lines) {
+        let ar = 0;
+        let ai = 0;
+        for (const c of chans) {
+          ar += (w[c] * ln.amp[c].re) / ac.sd[c];
+          ai += (w[c] * ln.amp[c].im) / ac.sd[c];
+        }
+        const pw = 0.5 * (ar * ar + ai * ai);
+        const om = (2 * Math.PI * ln.frequencyHz) / o.analysisRate;
+        for (let k = 0; k < L; k++) lineAcf[k] += pw * Math.cos(om * k);
       }
-    }
-    const full = new Float64Array(L);
-    for (const acc of groups) for (let k = 0; k < L; k++) full[k] += acc[k];
-    // a detected line adds (|a_y|²/2)·cos(ωk) per sample pair, a_y its complex amplitude in y
-    const lineAcf = new Float64Array(L);
-    for (const ln of lines) {
-      let ar = 0;
-      let ai = 0;
-      for (const c of chans) {
-        ar += (w[c] * ln.amp[c].re) / ac.sd[c];
-        ai += (w[c] * ln.amp[c].im) / ac.sd[c];
-      }
-      const pw = 0.5 * (ar * ar + ai * ai);
-      const om = (2 * Math.PI * ln.frequencyHz) / o.analysisRate;
-      for (let k = 0; k < L; k++) lineAcf[k] += pw * Math.cos(om * k);
-    }
+    };
     const acfOf = (sum: Float64Array, count: number): Float64Array => {
       const r = new Float64Array(L);
       for (let k = 0; k < L; k++) r[k] = sum[k] / count - (lineAcf[k] * (count - k)) / count;
       return r;
     };
     const fsA = o.analysisRate;
-    const rFull = acfOf(full, W);
     // the pole of a fit nearest the candidate's frequency (a decaying complex root)
     const nearestRoot = (a: Float64Array, fRef: number): Complex | null => {
       let z: Complex | null = null;
@@ -1456,8 +1537,9 @@ export class AmbientEngine {
       return z;
     };
     const fit = (eq: number): Complex | null => {
+      ensureLags(MYW_FIRST_LAG + eq);
       try {
-        return nearestRoot(modifiedYuleWalker(rFull, mywOrder(), MYW_FIRST_LAG, eq), poleToMode(z1, fsA).frequencyHz);
+        return nearestRoot(modifiedYuleWalker(acfOf(full, W), MYW_ORDER, MYW_FIRST_LAG, eq), poleToMode(z1, fsA).frequencyHz);
       } catch {
         return null;
       }
@@ -1466,7 +1548,7 @@ export class AmbientEngine {
     const z0 = fit(MYW_MIN_EQUATIONS);
     if (!z0) return null;
     const decay = fsA / Math.max(1e-9, -poleToMode(z0, fsA).sigma);
-    const eq = Math.min(MYW_MAX_EQUATIONS, Math.max(MYW_MIN_EQUATIONS, Math.round(mywSpan() * decay)));
+    const eq = Math.min(MYW_MAX_EQUATIONS, Math.max(MYW_MIN_EQUATIONS, Math.round(MYW_DECAY_SPAN * decay)));
     const z = eq === MYW_MIN_EQUATIONS ? z0 : fit(eq);
     if (!z) return null;
     const reps = groups.map((acc) => {
@@ -1474,7 +1556,7 @@ export class AmbientEngine {
       for (let k = 0; k < L; k++) rep[k] = full[k] - acc[k];
       let ra: Float64Array | null;
       try {
-        ra = modifiedYuleWalker(acfOf(rep, W - G), mywOrder(), MYW_FIRST_LAG, eq);
+        ra = modifiedYuleWalker(acfOf(rep, W - G), MYW_ORDER, MYW_FIRST_LAG, eq);
       } catch {
         ra = null;
       }
@@ -1488,15 +1570,18 @@ export class AmbientEngine {
    * for τ ≥ 0, E[x(t+τ)·y(t)] = Σ_k (C·v_k)·b_k·e^{λ_k τ} (output covariance of a linear system
    * driven by white noise, R(τ) = C·e^{Aτ}·P·Cᵀ), so the coefficient of the mode's own exponential
    * is proportional to its eigenvector C·v in every channel, whatever the other modes and the
-   * correlation of their excitation. The cross-correlations at lags 1…RESIDUE_LAGS are fitted by
-   * least squares on the exponentials of the mode's pole and of the window's stage-1 poles (those
-   * within the mode's half-power width stand for the same mode and are left out).
+   * correlation of their excitation. The cross-correlations at lags 1 … RESIDUE_SECONDS (at least
+   * twice the unknowns) are fitted by least squares on the exponentials of `basis`, the mode's own
+   * pole first (the caller leaves out poles that stand for part of a reported mode's peak).
    */
   private residueShape(ws: number, ac: WindowAcf, y: Float64Array, basis: Complex[]): ShapeEntry[] | null {
     const o = this.o;
     const W = o.windowSamples;
-    const Lx = RESIDUE_LAGS;
     const poles = basis.filter((p, i) => i === 0 || (Math.hypot(p.re, p.im) > 0.05 && Math.hypot(p.re, p.im) < 1.2));
+    let ncols = 0;
+    for (const p of poles) ncols += p.im > 0 ? 2 : 1;
+    // lags: RESIDUE_SECONDS, and at least twice the unknowns
+    const Lx = Math.max(Math.round(RESIDUE_SECONDS * o.analysisRate), 2 * ncols);
     // basis columns: Re z^τ, Im z^τ per complex pole (first the mode's own), z^τ per real pole
     const cols: Float64Array[] = [];
     for (const p of poles) {
@@ -1516,34 +1601,44 @@ export class AmbientEngine {
     }
     const nc = cols.length;
     if (nc >= Lx) return null;
-    const chans: number[] = [];
-    for (let c = 0; c < this.nCh; c++) if (ac.active[c]) chans.push(c);
-    const k = chans.length;
+    // The mode's two coefficients are linear in the cross-correlations: (α, β) = Σ_τ h_τ·ρ_c(τ),
+    // h the first two rows of the basis pseudo-inverse. And Σ_τ h_τ·Σ_t x_c[t+τ]·y[t] =
+    // Σ_t x_c[t]·u[t] with u[t] = Σ_{τ ≤ t} h_τ·y[t−τ] (exactly, window edges included), so each
+    // channel costs one inner product instead of a lag sum per lag.
     const A = new Float64Array(Lx * nc);
     for (let t = 0; t < Lx; t++) for (let j = 0; j < nc; j++) A[t * nc + j] = cols[j][t];
-    const b = new Float64Array(Lx * k);
-    chans.forEach((c, i) => {
-      const s = this.series[c];
-      const x = s.data;
-      const off = ws - s.base;
-      const mc = ac.mean[c];
-      for (let tau = 1; tau <= Lx; tau++) {
-        let acc = 0;
-        for (let t = 0; t + tau < W; t++) acc += (x[off + t + tau] - mc) * y[t];
-        b[(tau - 1) * k + i] = acc / W;
-      }
-    });
-    let sol: Matrix;
+    const eye = new Float64Array(Lx * Lx);
+    for (let t = 0; t < Lx; t++) eye[t * Lx + t] = 1;
+    let pinv: Matrix;
     try {
-      sol = lstsqArrays(A, Lx, nc, b, k, 1e-10).x;
+      pinv = lstsqArrays(A, Lx, nc, eye, Lx, 1e-10, true).x;
     } catch {
       return null;
     }
+    const u = [new Float64Array(W), new Float64Array(W)];
+    for (let r = 0; r < 2; r++) {
+      const ur = u[r];
+      for (let tau = 1; tau <= Lx; tau++) {
+        const h = pinv.get(r, tau - 1);
+        for (let t = tau; t < W; t++) ur[t] += h * y[t - tau];
+      }
+    }
+    const chans: number[] = [];
+    for (let c = 0; c < this.nCh; c++) if (ac.active[c]) chans.push(c);
     // α·Re z^τ + β·Im z^τ = Re((α − iβ)·z^τ)
-    const resp = chans.map((c, i) => {
-      const re = sol.get(0, i);
-      const im = -sol.get(1, i);
-      return { re, im, part: Math.hypot(re, im) / ac.sd[c] };
+    const resp = chans.map((c) => {
+      const s = this.series[c];
+      const x = s.data;
+      const off = ws - s.base;
+      const m = ac.mean[c];
+      let a = 0;
+      let b = 0;
+      for (let t = 0; t < W; t++) {
+        const v = x[off + t] - m;
+        a += v * u[0][t];
+        b += v * u[1][t];
+      }
+      return { re: a / W, im: -b / W, part: Math.hypot(a, b) / (W * ac.sd[c]) };
     });
     return shapeEntries(
       chans.map((c) => o.channels[c]),
@@ -1551,6 +1646,7 @@ export class AmbientEngine {
       o.shapeReference,
     );
   }
+
 
 
   /** Normalised spectral trace per band bin: Σ over active channels and segments of |X/σ|². */

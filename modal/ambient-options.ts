@@ -64,9 +64,11 @@ export interface AmbientOptions {
   /** Poles damped more than this, percent, are not reported as modes. Default 20. */
   maxDampingPercent: number;
   /**
-   * Least spectral peak-to-floor ratio of a reported mode: the channels' normalised Welch density
-   * summed at the mode's frequency over its median across the band (= `strength`). Poles of the AR
-   * model that only shape the noise floor (ratio ≈ 1) are not modes. Default 3.
+   * Least spectral peak-to-floor ratio of a reported mode, as an amplitude ratio (√ of the density
+   * ratio; = AmbientMode.strength): the Welch density of the mode's modal-filter output at the
+   * mode's frequency over its median across the band (yule-walker), or of the channels' normalised
+   * densities summed (acf-matrix-pencil). Poles of the AR model that only shape the noise floor
+   * (ratio ≈ 1) are not modes. Default 1.75 (a density ratio of about 3).
    */
   minStrength: number;
   forced: ForcedDetectionOptions;
@@ -102,7 +104,7 @@ export const DEFAULT_AMBIENT_OPTIONS: Readonly<AmbientOptions> = Object.freeze({
   confidenceLevel: 0.9,
   jackknifeGroups: 10,
   maxDampingPercent: 20,
-  minStrength: 3,
+  minStrength: 1.75,
   forced: Object.freeze({ enabled: true, maxDampingPercent: 1.5, minCoherence: 0.5 }) as ForcedDetectionOptions,
   channels: null,
   angleReference: TARROW_ANGLE_REFERENCE,

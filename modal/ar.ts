@@ -502,7 +502,7 @@ export function modifiedYuleWalker(r: ArrayLike<number>, order: number, firstLag
     for (let j = 1; j <= order; j++) A[e * order + j - 1] = r[Math.abs(k - j)];
     b[e] = -r[k];
   }
-  const x = lstsqArrays(A, equations, order, b, 1, 2.220446049250313e-16 * equations).x;
+  const x = lstsqArrays(A, equations, order, b, 1, 2.220446049250313e-16 * equations, true).x;
   const a = new Float64Array(order + 1);
   a[0] = 1;
   for (let j = 0; j < order; j++) a[j + 1] = x.get(j, 0);

@@ -96,7 +96,13 @@ export interface AmbientMode extends ModePole {
   /** True when the peak looks like a sustained forced oscillation, not a natural mode. */
   forced: boolean;
   shape: ShapeEntry[];
-  /** Relative spectral peak size or pole residue magnitude, used for ranking. */
+  /**
+   * How far the mode stands out of the spectral floor, as an amplitude ratio (√ of a density
+   * ratio): for the Yule-Walker method, the Welch density of the mode's modal-filter output at its
+   * frequency over the median across the band; otherwise the channels' normalised densities summed.
+   * About 1 for noise, from ~2 for a weak local mode to ~50 for a lightly damped inter-area mode.
+   * Used for ranking; options.minStrength is its least value.
+   */
   strength: number;
   /**
    * Phase coherence of the peak across the window's spectral segments, 0…1 (the forced-oscillation

@@ -86,9 +86,10 @@ async function main() {
   if (fs.existsSync(jsonOut)) {
     const r = JSON.parse(fs.readFileSync(jsonOut, 'utf8'));
     passed = r.numPassedTests ?? 0;
-    failed = (r.numFailedTests ?? 0) + (r.numFailedTestSuites ?? 0);
+    failed = r.numFailedTests ?? 0;
     skipped = (r.numPendingTests ?? 0) + (r.numTodoTests ?? 0);
   }
+  if (vt.status !== 0 && failed === 0) failed = 1; // a file that failed to load, or an error outside a test
   if (!typecheckOk) failed += 1;
   else if (!skipTypecheck && vitestArgs.length === 0) passed += 1;
   log(`finished in ${((Date.now() - t0) / 1000).toFixed(0)} s`);

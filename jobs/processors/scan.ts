@@ -10,6 +10,13 @@
 // (analysis, window start). A restarted job (worker killed, transient fault) resumes the stream at
 // the first window not yet stored; windows already stored are never written twice, none is
 // skipped. Window starts are on the grid recording start + k·step.
+//
+// Shared between workers: a scan longer than one block (KEEL_SCAN_BLOCK_SECONDS of window starts,
+// default an hour) is split by its job into one job per block of window indices, which any worker
+// takes. A block is scanned like a resumed scan (from its first unstored window, with a short lead
+// to settle the filters); the block that finds every window of the scan stored finishes the
+// analysis and queues the alert evaluation — exactly one does. The track assignment starts afresh
+// at each block, as it does after a restart.
 import { UnrecoverableError } from 'bullmq';
 import { readRecordingSamples } from '../../db/queries/recordings';
 import { listTracks } from '../../db/queries/alerts';
@@ -38,6 +45,8 @@ import { failAnalysisWith, publishProgress } from './analysis-progress';
 
 /** Samples read per database round trip, seconds of recording. */
 const CHUNK_SECONDS = 600;
+/** A stream that starts mid-recording begins this long before its first window to store, s. */
+const LEAD_SECONDS = 240;
 /** Progress is written at most this often (and at the end). */
 const PROGRESS_EVERY_MS = 1000;
 
@@ -231,7 +240,13 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow, b
   let storedNow = 0;
   let skippedExisting = 0;
   if (first < range.to) {
-    const streamStartRaw = first * stepRaw;
+    // Start the stream a few windows early when resuming mid-recording (a block, a restart): the
+    // estimator's filters and the track assignment need a few minutes of data to settle, and a
+    // window right at a stream start comes out up to a few tenths of a %-point off the one a
+    // continuous scan gives. The lead windows are computed and dropped, never stored.
+    const lead = Math.min(first, Math.ceil(LEAD_SECONDS / o.stepSeconds));
+    const streamFirst = first - lead;
+    const streamStartRaw = streamFirst * stepRaw;
     const seconds = Math.ceil(totalSamples / rate);
     const flowSums = new Map(corridors.filter((c) => c.flow).map((c) => [c.code, new SecondSums(seconds)]));
     const angleSums = new Map(corridors.filter((c) => c.angles).map((c) => [c.code, new SecondSums(seconds)]));
@@ -240,11 +255,16 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow, b
     const scanner = createAmbientScanner(
       { rate, startTime: recStartExact + streamStartRaw / rate, channelNames: fed },
       { ...(analysis.settings as AmbientOptionsInput), channels: o.channels },
-      (w) => pending.push({ w, k: first + emitted++ }),
+      (w) => pending.push({ w, k: streamFirst + emitted++ }),
     );
 
     const flush = async () => {
       for (const { w, k } of pending.splice(0)) {
+        if (k < first) {
+          // a lead window: only the track assignment learns from it
+          windowEstimates(w, o, tracker, trackIdOf, channelIds, new Date(startMsOf(k) + o.windowSeconds * 1000));
+          continue;
+        }
         if (k >= range.to) continue; // past this block: another block's window
         const startMs = startMsOf(k);
         if (stored.has(startMs)) {
@@ -288,7 +308,7 @@ async function scan(ctx: AnalysisContext, job: JobLike, analysis: AnalysisRow, b
     // to the end). The block that reaches the recording's end reads to the end and finishes the
     // scanner, which checks the stream as a whole (no valid sample, a constant channel).
     const toEnd = range.to === total;
-    while (next < totalSamples && (toEnd || first + emitted < range.to)) {
+    while (next < totalSamples && (toEnd || streamFirst + emitted < range.to)) {
       const endIdx = Math.min(totalSamples, next + chunkRaw);
       // [from, to] both inclusive, in epoch seconds on the recording's exact grid
       const rec = await readRecordingSamples(db, {

@@ -1,6 +1,7 @@
 import { EigenvalueDecomposition, Matrix, solve as mlSolve } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { TARROW_LOADS_MW, TARROW_MACHINES, TARROW_NOMINAL_HZ } from '../../fixtures/tarrow-network';
+import { TARROW_LOADS_MW, TARROW_MACHINES, TARROW_MECHANICAL_NOISE_MW, TARROW_NOMINAL_HZ } from '../../fixtures/tarrow-network';
+import { welch } from '../spectral';
 import { BASE_MVA, buildTarrowModel, wrap180 } from './model';
 import { runReference } from './reference.test-helper';
 import {
@@ -29,8 +30,14 @@ function variance(x: ArrayLike<number>): number {
 // Outputs that the rigid-body integrator (all machine angles moving together) does not reach.
 const row = (name: string) => m500.outputs.find((o) => o.channel === name)!.c;
 const diffRow = (a: string, b: string) => row(a).map((v, j) => v - row(b)[j]);
-const varRows = [row('tarrow-central.freq'), row('moorgate.mw'), diffRow('moorgate.angle', 'tarrow-central.angle'), diffRow('windlow.angle', 'tarrow-central.angle')];
-const W = m500.noiseInputs.map((s) => (DEFAULT_LOAD_NOISE * TARROW_LOADS_MW[s]) ** 2);
+const varRows = [
+  row('tarrow-central.freq'),
+  row('moorgate.mw'),
+  diffRow('moorgate.angle', 'tarrow-central.angle'),
+  diffRow('windlow.angle', 'tarrow-central.angle'),
+  row('greyscar.freq'),
+];
+const W = m500.noiseScaleMw.map((mw) => (DEFAULT_LOAD_NOISE * mw) ** 2);
 const n = m500.A.length;
 const BWB = [...Array(n)].map((_, i) => [...Array(n)].map((__, j) => m500.B[i].reduce((s, b, k) => s + b * W[k] * m500.B[j][k], 0)));
 
@@ -62,7 +69,7 @@ const ref = runReference([
 describe('simulateAmbient', () => {
   it('reproduces the stationary output variance of the continuous model (library: numpy eigen-decomposition; exact discretisation)', () => {
     const seeds = [11, 12, 13, 14];
-    const sums = [0, 0, 0, 0];
+    const sums = [0, 0, 0, 0, 0];
     for (const seed of seeds) {
       const rec = simulateAmbient(m500, { minutes: 60, seed, pmuNoise: QUIET });
       const f = chan(rec, 'tarrow-central.freq');
@@ -70,7 +77,7 @@ describe('simulateAmbient', () => {
       const tc = chan(rec, 'tarrow-central.angle');
       const d1 = chan(rec, 'moorgate.angle').map((v, i) => wrap180(v - tc[i]));
       const d2 = chan(rec, 'windlow.angle').map((v, i) => wrap180(v - tc[i]));
-      [f, mw, d1, d2].forEach((x, k) => (sums[k] += variance(x) / seeds.length));
+      [f, mw, d1, d2, chan(rec, 'greyscar.freq')].forEach((x, k) => (sums[k] += variance(x) / seeds.length));
     }
     sums.forEach((v, k) => {
       expect(v / ref[0].var[k], `output ${k}`).toBeGreaterThan(0.9);
@@ -98,6 +105,26 @@ describe('simulateAmbient', () => {
       expect(Math.abs(coef.get(0, 0) - expSin), name).toBeLessThan(1e-3 * scale);
       expect(Math.abs(coef.get(1, 0) - expCos), name).toBeLessThan(1e-3 * scale);
     });
+  });
+
+  it('drives the Greyscar local mode through the Greyscar units\' mechanical power: the loads as the Tarrow fixture lists them, then the unit', () => {
+    expect(m500.noiseInputs).toEqual([...Object.keys(TARROW_LOADS_MW), 'greyscar-hydro.mechanical']);
+    expect(m500.noiseScaleMw).toEqual([...Object.values(TARROW_LOADS_MW), TARROW_MECHANICAL_NOISE_MW['greyscar-hydro']]);
+    // a mechanical-power increase accelerates only its own rotor: M·Δω' = ΔPm
+    const g = TARROW_MACHINES.findIndex((m) => m.code === 'greyscar-hydro');
+    const col = m500.B.map((r) => r[m500.noiseInputs.length - 1]);
+    const ng = TARROW_MACHINES.length;
+    col.forEach((v, i) => expect(v).toBeCloseTo(i === ng + g ? 1 / (m500.network.inertia[g] * BASE_MVA) : 0, 12));
+  });
+
+  it('shows the Greyscar mode as a spectral peak in the Greyscar frequency (Welch density, 20 minutes)', () => {
+    const gs = m500.trueModes.find((m) => m.track === 'greyscar')!;
+    const rec = simulateAmbient(m500, { minutes: 20, seed: 21, channels: ['greyscar.freq'] });
+    const psd = welch(chan(rec, 'greyscar.freq'), rec.rate, { nperseg: 60 * rec.rate });
+    const at = (f: number) => psd.psd[Math.round(f / (psd.frequencies[1] - psd.frequencies[0]))];
+    const peak = Math.max(...[-0.02, -0.01, 0, 0.01, 0.02].map((d) => at(gs.frequencyHz + d)));
+    expect(peak / at(1.0)).toBeGreaterThan(3);
+    expect(peak / at(1.75)).toBeGreaterThan(3);
   });
 
   it('is reproducible by seed, and the seed changes the noise', () => {

@@ -11,13 +11,21 @@
 //               0.01 Hz, 90 % confidence-interval coverage 80–97 %;
 //   forced      a sustained forced oscillation added to ambient data is marked forced in ≥ 95 % of
 //               windows; pure ambient windows carry a forced mark in ≤ 5 %;
-//   shapes      estimated inter-area mode shapes against the true eigenvector: MAC ≥ 0.9 and
-//               relative angles within 15° in ≥ 90 % of windows (fits).
+//   shapes      estimated inter-area mode shapes against the true eigenvector: MAC ≥ 0.9 over all
+//               angle channels and relative angles within 15° in ≥ 90 % of windows (fits). Angles
+//               are judged on the channels whose true relative magnitude is at least
+//               SHAPE_ANGLE_MIN_MAGNITUDE (0.05) of the largest: the angle of a channel that barely
+//               moves (Millbrook in both inter-area modes, 0.1–0.2 % of the largest) is noise. The
+//               table states the threshold; every channel's median error is printed, left-out ones
+//               marked.
+// Informational rows (no target in the issue; marked INFO, not counted): the east–west and
+// Greyscar modes' frequency and damping bias and spread and 90 % interval coverage in the same
+// windows, and the Greyscar shape.
 // Also the simulator's speed: one day of 30 frames/s data for all channels.
 //
 //   npx tsx scripts/bench/accuracy.ts [--quick] [--ringdown N] [--ambient N]
 import { parseArgs } from 'node:util';
-import { TARROW_ANGLE_REFERENCE } from '../../fixtures/tarrow-network';
+import { TARROW_ANGLE_REFERENCE, TARROW_TRACKS } from '../../fixtures/tarrow-network';
 import { estimateAmbientWindow } from '../../modal/ambient';
 import { angleDifferenceDeg } from '../../modal/preprocess';
 import { createRng } from '../../modal/random';
@@ -33,7 +41,7 @@ import {
   type TrueMode,
   type TarrowModel,
 } from '../../modal/simulator';
-import type { RingdownMethod, SampledRecord, ShapeEntry } from '../../modal/types';
+import type { AmbientMode, RingdownMethod, SampledRecord, ShapeEntry } from '../../modal/types';
 
 const { values: args } = parseArgs({
   options: { quick: { type: 'boolean' }, ringdown: { type: 'string' }, ambient: { type: 'string' } },
@@ -46,7 +54,11 @@ interface Row {
   measured: string;
   limit: string;
   pass: boolean;
+  /** Informational: no target; printed as INFO and not counted. */
+  info?: boolean;
 }
+/** Shape angles are judged on channels whose true magnitude is at least this share of the largest. */
+const SHAPE_ANGLE_MIN_MAGNITUDE = 0.05;
 const rows: Row[] = [];
 const log = (s: string) => process.stdout.write(`${s}\n`);
 
@@ -74,9 +86,16 @@ function relativeAngles(rec: SampledRecord): SampledRecord {
   };
 }
 
-/** MAC and the largest relative-angle error (after the best common rotation) over entries whose
- * true magnitude is at least 0.2 of the largest. Both shapes as ShapeEntry lists over `names`. */
-function compareShapes(est: ShapeEntry[], truth: ShapeEntry[], names: string[]): { mac: number; maxAngleErr: number; errors: Record<string, number> } {
+/** MAC over all `names` and the largest relative-angle error (after the best common rotation) over
+ * entries whose true magnitude is at least `minMagnitude` of the largest; `errors` holds every
+ * channel's angle error, `judged` the channels the largest error is taken over. Both shapes as
+ * ShapeEntry lists over `names`. */
+function compareShapes(
+  est: ShapeEntry[],
+  truth: ShapeEntry[],
+  names: string[],
+  minMagnitude = SHAPE_ANGLE_MIN_MAGNITUDE,
+): { mac: number; maxAngleErr: number; errors: Record<string, number>; judged: string[] } {
   const pick = (s: ShapeEntry[], n: string) => s.find((e) => e.channel === n);
   const e = names.map((n) => pick(est, n)!);
   const t = names.map((n) => pick(truth, n)!);
@@ -99,14 +118,16 @@ function compareShapes(est: ShapeEntry[], truth: ShapeEntry[], names: string[]):
   const tMax = Math.max(...t.map((s) => s.magnitude));
   let maxErr = 0;
   const errors: Record<string, number> = {};
+  const judged: string[] = [];
   for (let k = 0; k < names.length; k++) {
-    if (t[k].magnitude < 0.2 * tMax) continue;
     let d = e[k].angleDeg - t[k].angleDeg - (rot * 180) / Math.PI;
     d = ((((d + 180) % 360) + 360) % 360) - 180;
     errors[names[k]] = Math.abs(d);
+    if (t[k].magnitude < minMagnitude * tMax) continue;
+    judged.push(names[k]);
     maxErr = Math.max(maxErr, Math.abs(d));
   }
-  return { mac, maxAngleErr: maxErr, errors };
+  return { mac, maxAngleErr: maxErr, errors, judged };
 }
 
 function nearest<T extends { frequencyHz: number }>(modes: T[], f: number, tol: number): T | undefined {
@@ -203,23 +224,60 @@ function benchRingdown(): void {
 // ---------------------------------------------------------------------------------------------
 // Ambient Monte Carlo (+ forced oscillation, + shapes)
 
-interface AmbientTally {
+interface ShapeScore {
+  mac: number;
+  err: number;
+  errors: Record<string, number>;
+  judged: string[];
+  truthMagnitude: Record<string, number>;
+}
+
+interface ModeTally {
   dz: number[];
   df: number[];
   covered: number;
   found: number;
+  shapes: ShapeScore[];
+}
+
+interface AmbientTally {
+  ns: ModeTally;
+  ew: ModeTally;
+  gs: ModeTally;
   forcedMarks: number;
-  nsShape: { mac: number; err: number; errors: Record<string, number> }[];
-  ewShape: { mac: number; err: number; errors: Record<string, number> }[];
   ms: number[];
 }
+
+const newModeTally = (): ModeTally => ({ dz: [], df: [], covered: 0, found: 0, shapes: [] });
 
 function angleNames(shape: ShapeEntry[]): string[] {
   return shape.filter((e) => e.channel.endsWith('.angle')).map((e) => e.channel);
 }
 
-function runAmbient(model: TarrowModel, ns: TrueMode, ew: TrueMode, seeds: number[], forced?: { frequencyHz: number; amplitude: number; site: string }) {
-  const tally: AmbientTally = { dz: [], df: [], covered: 0, found: 0, forcedMarks: 0, nsShape: [], ewShape: [], ms: [] };
+/**
+ * The estimate of a true mode in one window: the strongest natural estimate inside its track's
+ * band (as the scan's track assignment takes it) within `tol` Hz of the truth.
+ */
+function trackEstimate(modes: AmbientMode[], truth: TrueMode, tol: number): AmbientMode | undefined {
+  const track = TARROW_TRACKS.find((t) => t.code === truth.track)!;
+  return modes
+    .filter((m) => !m.forced && m.frequencyHz >= track.minHz && m.frequencyHz <= track.maxHz && Math.abs(m.frequencyHz - truth.frequencyHz) <= tol)
+    .sort((a, b) => b.strength - a.strength)[0];
+}
+
+function scoreMode(model: TarrowModel, truth: TrueMode, m: AmbientMode, tally: ModeTally): void {
+  tally.found++;
+  tally.dz.push(m.dampingPercent - truth.dampingPercent);
+  tally.df.push(m.frequencyHz - truth.frequencyHz);
+  if (truth.dampingPercent >= m.dampingCi[0] && truth.dampingPercent <= m.dampingCi[1]) tally.covered++;
+  const names = angleNames(m.shape);
+  const tru = modeOutputShape(model, truth, names, { angleReference: TARROW_ANGLE_REFERENCE });
+  const c = compareShapes(m.shape, tru, names);
+  tally.shapes.push({ mac: c.mac, err: c.maxAngleErr, errors: c.errors, judged: c.judged, truthMagnitude: Object.fromEntries(tru.map((e) => [e.channel, e.magnitude])) });
+}
+
+function runAmbient(model: TarrowModel, truths: { ns: TrueMode; ew: TrueMode; gs: TrueMode }, seeds: number[], forced?: { frequencyHz: number; amplitude: number; site: string }) {
+  const tally: AmbientTally = { ns: newModeTally(), ew: newModeTally(), gs: newModeTally(), forcedMarks: 0, ms: [] };
   let forcedHit = 0;
   for (const seed of seeds) {
     const rec = simulateAmbient(model, { minutes: 20, seed, forced });
@@ -231,69 +289,79 @@ function runAmbient(model: TarrowModel, ns: TrueMode, ew: TrueMode, seeds: numbe
       continue;
     }
     if (w.modes.some((m) => m.forced)) tally.forcedMarks++;
-    const m = nearest(w.modes.filter((x) => !x.forced), ns.frequencyHz, 0.05);
-    if (m) {
-      tally.found++;
-      tally.dz.push(m.dampingPercent - ns.dampingPercent);
-      tally.df.push(m.frequencyHz - ns.frequencyHz);
-      if (ns.dampingPercent >= m.dampingCi[0] && ns.dampingPercent <= m.dampingCi[1]) tally.covered++;
-      const names = angleNames(m.shape);
-      const truth = modeOutputShape(model, ns, names, { angleReference: TARROW_ANGLE_REFERENCE });
-      const c = compareShapes(m.shape, truth, names);
-      tally.nsShape.push({ mac: c.mac, err: c.maxAngleErr, errors: c.errors });
-    }
-    const e = nearest(w.modes.filter((x) => !x.forced), ew.frequencyHz, 0.05);
-    if (e) {
-      const names = angleNames(e.shape);
-      const truth = modeOutputShape(model, ew, names, { angleReference: TARROW_ANGLE_REFERENCE });
-      const c = compareShapes(e.shape, truth, names);
-      tally.ewShape.push({ mac: c.mac, err: c.maxAngleErr, errors: c.errors });
+    for (const key of ['ns', 'ew', 'gs'] as const) {
+      const m = trackEstimate(w.modes, truths[key], 0.05);
+      if (m) scoreMode(model, truths[key], m, tally[key]);
     }
   }
   return { tally, forcedHit };
 }
 
+function modeRows(name: string, t: ModeTally, truth: TrueMode, info: boolean): void {
+  const z = stats(t.dz);
+  const f = stats(t.df);
+  const cov = t.covered / Math.max(1, t.found);
+  log(
+    `  ${name}: found in ${t.found}/${N_AMB}; damping bias ${z.mean >= 0 ? '+' : ''}${f3(z.mean)} points, spread ${f3(z.sd)}; ` +
+      `frequency bias ${f.mean >= 0 ? '+' : ''}${f.mean.toFixed(4)} Hz, spread ${f.sd.toFixed(4)} Hz; 90 % CI coverage ${(100 * cov).toFixed(0)} %` +
+      (info ? ` (true ${f3(truth.frequencyHz)} Hz, ${f2(truth.dampingPercent)} %)` : ''),
+  );
+  const tag = info ? `ambient ${name} (informational)` : 'ambient';
+  const row = (target: string, measured: string, limit: string, pass: boolean) =>
+    rows.push(info ? { target: `${tag}: ${target}`, measured, limit: '—', pass: true, info: true } : { target: `${tag}: ${target}`, measured, limit, pass });
+  if (!info) row('north–south found', `${t.found}/${N_AMB}`, 'all', t.found === N_AMB);
+  else row('found', `${t.found}/${N_AMB}`, '', true);
+  row('damping bias', `${f3(z.mean)} points`, '±0.5', Math.abs(z.mean) <= 0.5);
+  row('damping spread', `${f3(z.sd)} points`, '≤ 1.0', z.sd <= 1.0);
+  row('frequency bias', `${f.mean.toFixed(4)} Hz`, '±0.01', Math.abs(f.mean) <= 0.01);
+  if (info) row('frequency spread', `${f.sd.toFixed(4)} Hz`, '', true);
+  row('90 % CI coverage', `${(100 * cov).toFixed(0)} %`, '80–97 %', cov >= 0.8 && cov <= 0.97);
+}
+
+function shapeRows(name: string, list: ShapeScore[], info: boolean): void {
+  const ok = list.filter((s) => s.mac >= 0.9 && s.err <= 15).length / N_AMB;
+  log(
+    `  ${name} shape (angle channels vs eigenvector): median MAC ${median(list.map((s) => s.mac)).toFixed(3)} (all channels), ` +
+      `median largest angle error ${median(list.map((s) => s.err)).toFixed(1)}° (channels with true magnitude ≥ ${SHAPE_ANGLE_MIN_MAGNITUDE}), ` +
+      `MAC ≥ 0.9 and angles within 15° in ${(100 * ok).toFixed(0)} % of windows`,
+  );
+  const chans = [...new Set(list.flatMap((s) => Object.keys(s.errors)))];
+  const cell = (c: string) => {
+    const errs = list.map((s) => s.errors[c]).filter((v) => v !== undefined);
+    const mag = median(list.map((s) => s.truthMagnitude[c]).filter((v) => v !== undefined));
+    const left = list.every((s) => !s.judged.includes(c));
+    return `${c.replace('.angle', '')} ${median(errs).toFixed(1)}° (|true| ${mag.toFixed(2)}${left ? ', left out' : ''})`;
+  };
+  log(`    median angle error by channel: ${chans.map(cell).join(', ')}`);
+  const target = `ambient${info ? ` ${name} (informational)` : ''}: ${name} shape MAC ≥ 0.9, angles ≤ 15° (|true| ≥ ${SHAPE_ANGLE_MIN_MAGNITUDE})`;
+  rows.push(info ? { target, measured: `${(100 * ok).toFixed(0)} % of windows`, limit: '—', pass: true, info: true } : { target, measured: `${(100 * ok).toFixed(0)} % of windows`, limit: '≥ 90 %', pass: ok >= 0.9 });
+}
+
 function benchAmbient(): void {
   const p = transferAtDampingPercent('north-south', 3)!;
   const model = buildTarrowModel(p);
-  const ns = trackMode(model, 'north-south')!;
-  const ew = trackMode(model, 'east-west')!;
+  const truths = { ns: trackMode(model, 'north-south')!, ew: trackMode(model, 'east-west')!, gs: trackMode(model, 'greyscar')! };
+  const { ns, ew, gs } = truths;
   const seeds = Array.from({ length: N_AMB }, (_, i) => 5000 + i);
   log('');
-  log(`Ambient: ${p.toFixed(0)} MW (north–south ${f3(ns.frequencyHz)} Hz, ${f2(ns.dampingPercent)} %; east–west ${f3(ew.frequencyHz)} Hz, ${f2(ew.dampingPercent)} %), 20-minute windows, ${N_AMB} realisations, all 22 channels, default estimator options`);
-  const { tally } = runAmbient(model, ns, ew, seeds);
-  const z = stats(tally.dz);
-  const f = stats(tally.df);
-  const cov = tally.covered / Math.max(1, tally.found);
   log(
-    `  north–south: found in ${tally.found}/${N_AMB}; damping bias ${z.mean >= 0 ? '+' : ''}${f3(z.mean)} points, spread ${f3(z.sd)}; ` +
-      `frequency bias ${f.mean >= 0 ? '+' : ''}${f.mean.toFixed(4)} Hz, spread ${f.sd.toFixed(4)} Hz; 90 % CI coverage ${(100 * cov).toFixed(0)} %; ` +
-      `${median(tally.ms).toFixed(0)} ms per window (median)`,
+    `Ambient: ${p.toFixed(0)} MW (north–south ${f3(ns.frequencyHz)} Hz, ${f2(ns.dampingPercent)} %; east–west ${f3(ew.frequencyHz)} Hz, ${f2(ew.dampingPercent)} %; ` +
+      `Greyscar ${f3(gs.frequencyHz)} Hz, ${f2(gs.dampingPercent)} %), 20-minute windows, ${N_AMB} realisations, all 22 channels, default estimator options`,
   );
-  rows.push({ target: 'ambient: north–south found', measured: `${tally.found}/${N_AMB}`, limit: 'all', pass: tally.found === N_AMB });
-  rows.push({ target: 'ambient: damping bias', measured: `${f3(z.mean)} points`, limit: '±0.5', pass: Math.abs(z.mean) <= 0.5 });
-  rows.push({ target: 'ambient: damping spread', measured: `${f3(z.sd)} points`, limit: '≤ 1.0', pass: z.sd <= 1.0 });
-  rows.push({ target: 'ambient: frequency bias', measured: `${f.mean.toFixed(4)} Hz`, limit: '±0.01', pass: Math.abs(f.mean) <= 0.01 });
-  rows.push({ target: 'ambient: 90 % CI coverage', measured: `${(100 * cov).toFixed(0)} %`, limit: '80–97 %', pass: cov >= 0.8 && cov <= 0.97 });
+  const { tally } = runAmbient(model, truths, seeds);
+  modeRows('north–south', tally.ns, ns, false);
+  log(`  ${median(tally.ms).toFixed(0)} ms per window (median, one window from a 20-minute record, decimation included)`);
+  modeRows('east–west', tally.ew, ew, true);
+  modeRows('Greyscar', tally.gs, gs, true);
   const fa = tally.forcedMarks / N_AMB;
   rows.push({ target: 'forced: false marks on pure ambient', measured: `${(100 * fa).toFixed(0)} % of windows`, limit: '≤ 5 %', pass: fa <= 0.05 });
-  for (const [name, list] of [
-    ['north–south', tally.nsShape],
-    ['east–west', tally.ewShape],
-  ] as const) {
-    const ok = list.filter((s) => s.mac >= 0.9 && s.err <= 15).length / N_AMB;
-    log(
-      `  ${name} shape (angle channels vs eigenvector): median MAC ${median(list.map((s) => s.mac)).toFixed(3)}, median largest angle error ${median(list.map((s) => s.err)).toFixed(1)}°, ` +
-        `MAC ≥ 0.9 and angles within 15° in ${(100 * ok).toFixed(0)} % of windows`,
-    );
-    const chans = [...new Set(list.flatMap((s) => Object.keys(s.errors)))];
-    log(`    median angle error by channel (true magnitude ≥ 0.2): ${chans.map((c) => `${c} ${median(list.map((s) => s.errors[c]).filter((v) => v !== undefined)).toFixed(1)}°`).join(', ')}`);
-    rows.push({ target: `ambient: ${name} shape MAC ≥ 0.9, angles ≤ 15°`, measured: `${(100 * ok).toFixed(0)} % of windows`, limit: '≥ 90 %', pass: ok >= 0.9 });
-  }
+  shapeRows('north–south', tally.ns.shapes, false);
+  shapeRows('east–west', tally.ew.shapes, false);
+  shapeRows('Greyscar', tally.gs.shapes, true);
 
   const forced = { frequencyHz: 0.9, amplitude: 20, site: 'windlow' };
   const fSeeds = Array.from({ length: N_AMB }, (_, i) => 7000 + i);
-  const { forcedHit } = runAmbient(model, ns, ew, fSeeds, forced);
+  const { forcedHit } = runAmbient(model, truths, fSeeds, forced);
   const hit = forcedHit / N_AMB;
   log(`  forced oscillation ${forced.amplitude} MW at ${forced.frequencyHz} Hz injected at ${forced.site}: marked forced in ${forcedHit}/${N_AMB} windows`);
   rows.push({ target: 'forced: marked in forced windows', measured: `${(100 * hit).toFixed(0)} % of windows`, limit: '≥ 95 %', pass: hit >= 0.95 });
@@ -315,9 +383,10 @@ function main(): void {
   const w = Math.max(...rows.map((r) => r.target.length));
   const wm = Math.max(...rows.map((r) => r.measured.length));
   log(`${'target'.padEnd(w)}  ${'measured'.padEnd(wm)}  ${'limit'.padEnd(8)}  result`);
-  for (const r of rows) log(`${r.target.padEnd(w)}  ${r.measured.padEnd(wm)}  ${r.limit.padEnd(8)}  ${r.pass ? 'PASS' : 'FAIL'}`);
-  const failed = rows.filter((r) => !r.pass).length;
-  log(`\n${rows.length - failed} PASS, ${failed} FAIL`);
+  for (const r of rows) log(`${r.target.padEnd(w)}  ${r.measured.padEnd(wm)}  ${r.limit.padEnd(8)}  ${r.info ? 'INFO' : r.pass ? 'PASS' : 'FAIL'}`);
+  const judged = rows.filter((r) => !r.info);
+  const failed = judged.filter((r) => !r.pass).length;
+  log(`\n${judged.length - failed} PASS, ${failed} FAIL (${rows.length - judged.length} informational rows)`);
 }
 
 main();

@@ -17,7 +17,8 @@
 // Targets: p95 ≤ 50 ms for Watch, ≤ 150 ms for a year of Trends, no errors anywhere.
 //
 //   npm run bench:api -- [--days 365] [--duration 10] [--connections 50] [--keep]
-//                        [--database-url URL --redis-url URL]   (an already filled database)
+//                        [--database-url URL --redis-url URL]   (an already filled database;
+//                         --pg-data DIR: its cluster's data folder, for PostgreSQL's CPU figure)
 //                        [--server-root DIR]                    (run another checkout's server)
 //                        [--node-env production|development]
 import os from 'node:os';
@@ -25,7 +26,7 @@ import { parseArgs } from 'node:util';
 import autocannon from 'autocannon';
 import pg from 'pg';
 import { DEMO_PASSWORD, DEMO_PEOPLE } from '../../db/seed';
-import { freePort, loadLine, pad, procStatusMb, repoRoot, scriptPid, signIn, stackEnv, startBenchServices, startServer } from './bench-stack';
+import { freePort, loadLine, pad, postgresCpuMs, procCpuMs, procStatusMb, repoRoot, scriptPid, signIn, stackEnv, startBenchServices, startServer } from './bench-stack';
 import { fillEstimates } from './fill-year';
 
 const { values: args } = parseArgs({
@@ -38,6 +39,7 @@ const { values: args } = parseArgs({
     'redis-url': { type: 'string' },
     'server-root': { type: 'string' },
     'node-env': { type: 'string' },
+    'pg-data': { type: 'string' },
   },
 });
 
@@ -52,6 +54,9 @@ interface Row {
   errors: number;
   requests: number;
   kb: number;
+  /** CPU time per request of the server process and of PostgreSQL (all its backends), ms. */
+  serverCpu: number | null;
+  dbCpu: number | null;
 }
 
 function percentile(sorted: number[], p: number): number {
@@ -59,7 +64,7 @@ function percentile(sorted: number[], p: number): number {
   return sorted[Math.min(sorted.length - 1, Math.ceil(p * sorted.length) - 1)];
 }
 
-async function cannon(url: string, cookie: string, connections: number, duration: number): Promise<Omit<Row, 'name' | 'path' | 'targetP95'>> {
+async function cannon(url: string, cookie: string, connections: number, duration: number): Promise<Omit<Row, 'name' | 'path' | 'targetP95' | 'serverCpu' | 'dbCpu'>> {
   const times: number[] = [];
   let bytes = 0;
   const inst = autocannon({ url, connections, duration, headers: { cookie, accept: 'application/json' }, timeout: 30 });
@@ -118,7 +123,7 @@ async function main() {
     // the transfer screen asks for the 7 days up to the next whole hour
     const studyTo = new Date(Math.ceil(latest.getTime() / 3_600_000) * 3_600_000);
     const trends = (d: number) => `/api/tracks/north-south/estimates?from=${encodeURIComponent(ago(d))}&to=${encodeURIComponent(to)}&maxPoints=700`;
-    const endpoints: Omit<Row, 'p50' | 'p95' | 'p99' | 'rps' | 'errors' | 'requests' | 'kb'>[] = [
+    const endpoints: Pick<Row, 'name' | 'path' | 'targetP95'>[] = [
       { name: 'floor: GET /api/auth/me', path: '/api/auth/me', targetP95: null },
       { name: 'Watch', path: '/api/watch', targetP95: 50 },
       { name: 'Trends, a year', path: trends(365), targetP95: 150 },
@@ -143,13 +148,30 @@ async function main() {
     for (const e of endpoints) {
       await cannon(base + e.path, cookie, Math.min(10, connections), 2); // warm-up
       const load = os.loadavg()[0];
+      const pgData = svc.pgData ?? args['pg-data'] ?? null;
+      const cpu0 = { server: procCpuMs(serverPid), db: pgData ? postgresCpuMs(pgData) : null };
       const r = await cannon(base + e.path, cookie, connections, duration);
-      rows.push({ ...e, ...r });
+      const cpu1 = { server: procCpuMs(serverPid), db: pgData ? postgresCpuMs(pgData) : null };
+      const per = (a: number | null, b: number | null) => (a === null || b === null || r.requests === 0 ? null : (b - a) / r.requests);
+      rows.push({ ...e, ...r, serverCpu: per(cpu0.server, cpu1.server), dbCpu: per(cpu0.db, cpu1.db) });
       console.log(`  ${e.name}: done (load ${load.toFixed(1)})`);
     }
     const line = (cells: string[]) => console.log(cells.join('  '));
     console.log('');
-    line([pad('endpoint', 26), pad('p50 ms', 8, true), pad('p95 ms', 8, true), pad('p99 ms', 8, true), pad('req/s', 8, true), pad('requests', 9, true), pad('errors', 7, true), pad('kB/resp', 8, true), pad('target p95', 11, true), 'result']);
+    line([
+      pad('endpoint', 26),
+      pad('p50 ms', 8, true),
+      pad('p95 ms', 8, true),
+      pad('p99 ms', 8, true),
+      pad('req/s', 7, true),
+      pad('requests', 8, true),
+      pad('errors', 6, true),
+      pad('kB/resp', 7, true),
+      pad('CPU ms/req: server', 18, true),
+      pad('db', 5, true),
+      pad('target p95', 10, true),
+      'result',
+    ]);
     let allPass = true;
     for (const r of rows) {
       const pass = r.errors === 0 && (r.targetP95 === null || r.p95 <= r.targetP95);
@@ -159,15 +181,21 @@ async function main() {
         pad(r.p50.toFixed(1), 8, true),
         pad(r.p95.toFixed(1), 8, true),
         pad(r.p99.toFixed(1), 8, true),
-        pad(r.rps.toFixed(0), 8, true),
-        pad(r.requests, 9, true),
-        pad(r.errors, 7, true),
-        pad(r.kb.toFixed(1), 8, true),
-        pad(r.targetP95 === null ? '—' : `≤ ${r.targetP95}`, 11, true),
+        pad(r.rps.toFixed(0), 7, true),
+        pad(r.requests, 8, true),
+        pad(r.errors, 6, true),
+        pad(r.kb.toFixed(1), 7, true),
+        pad(r.serverCpu === null ? '—' : r.serverCpu.toFixed(2), 18, true),
+        pad(r.dbCpu === null ? '—' : r.dbCpu.toFixed(2), 5, true),
+        pad(r.targetP95 === null ? '—' : `≤ ${r.targetP95}`, 10, true),
         r.targetP95 === null ? (r.errors === 0 ? 'ok (no target)' : 'FAIL (errors)') : pass ? 'PASS' : 'FAIL',
       ]);
     }
-    console.log(`\nserver peak memory (VmHWM) ${procStatusMb(serverPid, 'VmHWM')?.toFixed(0) ?? '?'} MB; ${loadLine()}`);
+    console.log(
+      `\nCPU ms/req: CPU time the server process and PostgreSQL spent per request during the run (independent of how busy the machine was; ` +
+        `Node serves on one core, so 1000 / server CPU ms is its request-rate ceiling per core)`,
+    );
+    console.log(`server peak memory (VmHWM) ${procStatusMb(serverPid, 'VmHWM')?.toFixed(0) ?? '?'} MB; ${loadLine()}`);
     console.log(allPass ? 'bench:api: every target met' : 'bench:api: some target missed (see the table; the machine load is above)');
   } finally {
     await server?.stop();

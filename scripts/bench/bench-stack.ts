@@ -30,14 +30,18 @@ export interface BenchServices {
   redisUrl: string;
   pgPort: number;
   work: string;
+  /** The PostgreSQL data folder when this run started the cluster (null for a given DATABASE_URL). */
+  pgData: string | null;
   stop(): Promise<void>;
 }
 
 /**
- * A throwaway PostgreSQL + Redis (durability off: a benchmark cluster, like the test one), with one
+ * A throwaway PostgreSQL + Redis (durability off unless asked: a benchmark cluster, like the test one), with one
  * migrated and seeded database `keel_bench`. Or, with `databaseUrl` and `redisUrl` given, those.
  */
-export async function startBenchServices(opts: { databaseUrl?: string; redisUrl?: string; keep?: boolean; log?: (l: string) => void } = {}): Promise<BenchServices> {
+export async function startBenchServices(
+  opts: { databaseUrl?: string; redisUrl?: string; keep?: boolean; log?: (l: string) => void; /** fsync on (default false: a throwaway cluster) */ durable?: boolean } = {},
+): Promise<BenchServices> {
   const s = await services();
   const log = opts.log ?? ((l: string) => console.log(l));
   const work = s.tmpDir('keel-bench-');
@@ -49,12 +53,12 @@ export async function startBenchServices(opts: { databaseUrl?: string; redisUrl?
   try {
     if (!databaseUrl) {
       pgPort = await s.freePort();
-      pg = s.startPostgres({ dir: path.join(work, 'pg'), port: pgPort, fast: true });
+      pg = s.startPostgres({ dir: path.join(work, 'pg'), port: pgPort, fast: !opts.durable });
       s.ensureDatabase(pgPort, 'keel_bench');
       databaseUrl = pg.url('keel_bench');
       s.runTsx('db/migrate.ts', { DATABASE_URL: databaseUrl });
       s.runTsx('scripts/seed.ts', { DATABASE_URL: databaseUrl });
-      log(`PostgreSQL on 127.0.0.1:${pgPort} (data in ${work})`);
+      log(`PostgreSQL on 127.0.0.1:${pgPort}${opts.durable ? '' : ' (fsync off)'}, data in ${work}`);
     } else {
       pgPort = Number(new URL(databaseUrl).port);
     }
@@ -72,6 +76,7 @@ export async function startBenchServices(opts: { databaseUrl?: string; redisUrl?
     redisUrl,
     pgPort,
     work,
+    pgData: pg ? path.join(pg.dir, 'data') : null,
     async stop() {
       if (redis) await s.stopChild(redis.child);
       if (pg) s.stopPostgres(pg);
@@ -240,6 +245,30 @@ export function scriptPid(launcherPid: number): number {
     }
   });
   return direct[0] ?? launcherPid;
+}
+
+/** CPU time (user + system) a process has used, ms; null when it is gone. */
+export function procCpuMs(pid: number): number | null {
+  try {
+    const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    // fields 14 and 15 of stat (utime, stime) are f[11], f[12] after the name; clock ticks of 10 ms (USER_HZ 100)
+    return (Number(f[11]) + Number(f[12])) * 10;
+  } catch {
+    return null;
+  }
+}
+
+/** CPU time used so far by the backends of a PostgreSQL cluster we started (children of its postmaster), ms. */
+export function postgresCpuMs(pgData: string): number | null {
+  try {
+    const postmaster = Number(fs.readFileSync(path.join(pgData, 'postmaster.pid'), 'utf8').split('\n')[0]);
+    let ms = procCpuMs(postmaster) ?? 0;
+    for (const p of descendants(postmaster)) ms += procCpuMs(p) ?? 0;
+    return ms;
+  } catch {
+    return null;
+  }
 }
 
 export function loadLine(): string {

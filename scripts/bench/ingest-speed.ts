@@ -81,7 +81,8 @@ async function child(phase: string, file: string) {
   process.stdout.write(`${JSON.stringify(out)}\n`);
 }
 
-function writeCsv(file: string, minutes: number, nChannels: number, rate: number): number {
+/** Writes the benchmark CSV (also used by the HTTP ingest benchmark, ./ingest-http.ts); returns the row count. */
+export function writeCsv(file: string, minutes: number, nChannels: number, rate: number): number {
   const names = TARROW_CHANNELS.slice(0, nChannels).map((c) => c.name);
   if (names.length < nChannels) throw new Error(`the Tarrow network has only ${names.length} channels`);
   const fd = fs.openSync(file, 'w');
@@ -155,7 +156,9 @@ async function main() {
   }
 }
 
-main().catch((err) => {
-  console.error(err);
-  process.exit(1);
-});
+if (require.main === module) {
+  main().catch((err) => {
+    console.error(err);
+    process.exit(1);
+  });
+}

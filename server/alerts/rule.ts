@@ -308,7 +308,8 @@ export function evaluateAlertRule(
         s.openDamping = alerts.length - 1;
         s.poorSinceOpen = 0;
         a.windows = 1;
-        noteWorst(a, w);
+        // The streak that opened the alert is its evidence: its windows count towards the worst.
+        for (let k = i - s.poorStreak + 1; k <= i; k++) noteWorst(a, sorted[k]);
         transitions.push({ type: 'open', kind: 'poor', alert: s.openDamping, at: w.end });
         if (natural && natural.ciHigh < escalateBelow) {
           a.level = 2;

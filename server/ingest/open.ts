@@ -18,7 +18,7 @@ export interface UploadedFile {
 
 export type UploadKind = 'csv' | 'cff' | 'comtrade';
 
-/** Longest file name kept (the common file-system limit; longer names are shortened). */
+/** Longest file name kept, in UTF-16 code units (the common file-system limit; longer names are shortened). */
 export const MAX_UPLOAD_NAME = 255;
 
 /**
@@ -35,10 +35,15 @@ export function cleanUploadName(name: string): string {
     .replace(/[/\\]/g, '_')
     .trim();
   if (n === '' || n === '.' || n === '..') n = 'upload';
-  const chars = Array.from(n); // code points: a cut never splits a surrogate pair
-  if (chars.length > MAX_UPLOAD_NAME) {
+  if (n.length > MAX_UPLOAD_NAME) {
     const ext = /\.[A-Za-z0-9]{1,8}$/.exec(n)?.[0] ?? '';
-    n = chars.slice(0, MAX_UPLOAD_NAME - ext.length).join('') + ext;
+    let head = '';
+    // whole code points only: a cut never leaves half a surrogate pair
+    for (const ch of n) {
+      if (head.length + ch.length > MAX_UPLOAD_NAME - ext.length) break;
+      head += ch;
+    }
+    n = head + ext;
   }
   return n;
 }

@@ -35,11 +35,20 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
           await page.getByRole('button', { name: 'Sign in' }).click();
           const nav = page.getByRole('navigation');
           await expect.poll(async () => nav.getByText('Watch', { exact: true }).count(), { timeout: 20_000 }).toBeGreaterThan(0);
-          const names = await nav.allInnerTexts();
-          const text = names.join('\n');
-          for (const item of EXPECT[role].has) expect(text, `${role} should see ${item}`).toContain(item);
-          for (const item of EXPECT[role].lacks) expect(text, `${role} should not see ${item}`).not.toContain(item);
           await b.shot(`${role}-watch`);
+          // On a phone the sections past the fifth sit in the "More" sheet: open it to see them all.
+          const more = page.getByRole('button', { name: 'More' });
+          if ((await more.count()) > 0) {
+            await more.click();
+            await b.shot(`${role}-more`);
+          }
+          for (const item of EXPECT[role].has) {
+            expect(await page.getByRole('link', { name: item, exact: true }).count(), `${role} should see ${item}`).toBeGreaterThan(0);
+          }
+          for (const item of EXPECT[role].lacks) {
+            expect(await page.getByRole('link', { name: item, exact: true }).count(), `${role} should not see ${item}`).toBe(0);
+          }
+          if ((await more.count()) > 0) await more.click();
           await page.getByRole('button', { name: 'Sign out' }).click();
           await expect.poll(async () => page.getByRole('button', { name: 'Sign in' }).count(), { timeout: 20_000 }).toBe(1);
           expect(b.errors, b.errors.join('\n')).toEqual([]);
