@@ -1114,8 +1114,8 @@ export class AmbientEngine {
     const modes: AmbientMode[] = [];
     const trace = this.bandTrace(segs, ac.active, ac.sd);
     const floor = medianOf(trace);
-    // strength: amplitude over the floor's, √ of the density ratio (see AmbientMode.strength)
-    const strengthAt = (bin: number): number => (floor > 0 ? Math.sqrt(trace[bin] / floor) : 0);
+    // strength: the peak over the floor in dB (see AmbientMode.strength)
+    const strengthAt = (bin: number): number => peakDb(trace[bin], floor);
     // a line removed from the autocorrelation can leave a residual pole next to it
     const lineGuardHz = Math.max(3 / T, (1.5 * o.analysisRate) / o.segmentSamples);
     const taken: Complex[] = [];
@@ -1465,7 +1465,7 @@ export class AmbientEngine {
     const floorBins: number[] = [];
     for (let j = 0; j < nb; j += SPEC_FLOOR_STRIDE) floorBins.push(specAt(j));
     const specFloor = medianOf(floorBins);
-    const strengthAt = (j: number): number => (specFloor > 0 ? Math.sqrt(specAt(j) / specFloor) : 0);
+    const strengthAt = (j: number): number => peakDb(specAt(j), specFloor);
     if (strengthAt(bin) < o.minStrength) return { z: null, strengthAt };
     // y over the window, centred
     const y = new Float64Array(W);
@@ -1727,6 +1727,11 @@ export class AmbientEngine {
 
 // ---------------------------------------------------------------------------------------------
 // Helpers shared with modeShapeAt
+
+/** 10·log10(peak / floor), dB; −100 dB when either is not positive (nothing stands out). */
+function peakDb(peak: number, floor: number): number {
+  return peak > 0 && floor > 0 ? Math.max(-100, 10 * Math.log10(peak / floor)) : -100;
+}
 
 function nearestPole(poles: Complex[], z: Complex, maxDist: number): Complex | null {
   let best: Complex | null = null;

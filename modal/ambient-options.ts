@@ -45,12 +45,18 @@ export interface AmbientOptions {
   analysisRate: number | null;
   /**
    * 'yule-walker' (default): an AR polynomial fitted to pooled normalised autocorrelations by
-   * Levinson–Durbin; fast, and on simulated Tarrow data the more accurate of the two.
+   * Levinson–Durbin finds the candidate poles; each candidate is then estimated from its modal
+   * filter's output by a low-order modified Yule-Walker fit, and its shape from residues
+   * (modal/ambient-engine.ts); on simulated Tarrow data the more accurate of the two.
    * 'acf-matrix-pencil': matrix pencil on the pooled autocorrelation (lags 1 … acfLagSeconds;
-   * SVD per window and per jackknife replicate, so about 10× slower).
+   * SVD per window and per jackknife replicate, so about 10× slower), refitted with channel
+   * weights per mode; shapes from the cross-spectral matrix.
    */
   method: AmbientMethod;
-  /** AR order (yule-walker) or signal-subspace order (acf-matrix-pencil). Default 30. */
+  /**
+   * AR order of the pooled fit that finds the candidate modes (yule-walker) or signal-subspace
+   * order (acf-matrix-pencil). Default 30.
+   */
   arOrder: number;
   /** acf-matrix-pencil: autocorrelation lags used, s. Default 30. */
   acfLagSeconds: number;
@@ -64,11 +70,11 @@ export interface AmbientOptions {
   /** Poles damped more than this, percent, are not reported as modes. Default 20. */
   maxDampingPercent: number;
   /**
-   * Least spectral peak-to-floor ratio of a reported mode, as an amplitude ratio (√ of the density
-   * ratio; = AmbientMode.strength): the Welch density of the mode's modal-filter output at the
-   * mode's frequency over its median across the band (yule-walker), or of the channels' normalised
-   * densities summed (acf-matrix-pencil). Poles of the AR model that only shape the noise floor
-   * (ratio ≈ 1) are not modes. Default 1.75 (a density ratio of about 3).
+   * Least spectral peak-to-floor ratio of a reported mode, dB (= AmbientMode.strength): the Welch
+   * density of the mode's modal-filter output at the mode's frequency over its median across the
+   * band (yule-walker), or of the channels' normalised densities summed (acf-matrix-pencil). Poles
+   * of the AR model that only shape the noise floor (≈ 0 dB) are not modes. Default 4.8 dB (a
+   * density ratio of 3).
    */
   minStrength: number;
   forced: ForcedDetectionOptions;
@@ -104,7 +110,7 @@ export const DEFAULT_AMBIENT_OPTIONS: Readonly<AmbientOptions> = Object.freeze({
   confidenceLevel: 0.9,
   jackknifeGroups: 10,
   maxDampingPercent: 20,
-  minStrength: 1.75,
+  minStrength: 4.8,
   forced: Object.freeze({ enabled: true, maxDampingPercent: 1.5, minCoherence: 0.5 }) as ForcedDetectionOptions,
   channels: null,
   angleReference: TARROW_ANGLE_REFERENCE,
@@ -258,7 +264,7 @@ export function checkAmbientOptions(options: AmbientOptionsInput | undefined, co
   }
   const minStrength = pick('minStrength');
   if (typeof minStrength !== 'number' || !Number.isFinite(minStrength) || minStrength < 0) {
-    throw new ModalInputError(`minStrength must be a non-negative number, got ${fmt(minStrength)}`);
+    throw new ModalInputError(`minStrength must be a non-negative number of dB, got ${fmt(minStrength)}`);
   }
   const maxGapSeconds = pick('maxGapSeconds');
   if (typeof maxGapSeconds !== 'number' || !Number.isFinite(maxGapSeconds) || maxGapSeconds < 0) {

@@ -95,7 +95,7 @@ describe('checkAmbientOptions', () => {
       ],
       [{ windowSeconds: 7200 }, 'the record lasts 3600 s; one window needs windowSeconds = 7200 s'],
       [{ shapeReference: 'w' }, "shapeReference 'w' is not one of the analysed channels"],
-      [{ minStrength: -1 }, 'minStrength must be a non-negative number, got -1'],
+      [{ minStrength: -1 }, 'minStrength must be a non-negative number of dB, got -1'],
     ];
     for (const [o, msg] of bad) expect(() => checkAmbientOptions(o as never, ctx)).toThrow(new ModalInputError(msg));
     expect(() => checkAmbientOptions({}, { ...ctx, rate: 4 })).toThrow(
@@ -349,6 +349,39 @@ describe('modeShapeAt', () => {
 });
 
 describe('on the simulated Tarrow grid (truth: the simulator eigenvalues)', () => {
+  it('estimates the east–west mode (weak in Highmoor, next to the north–south mode) and the Greyscar local mode, each once, with their shapes', () => {
+    const transfer = transferAtDampingPercent('north-south', 3)!;
+    const model = buildTarrowModel(transfer);
+    const w = estimateAmbientWindow(simulateAmbient(model, { minutes: 20, seed: 8 }));
+    const natural = w.modes.filter((m) => !m.forced);
+    for (const track of ['east-west', 'greyscar']) {
+      const truth = model.trueModes.find((m) => m.track === track)!;
+      // one estimate per physical mode: none other within the true half-power half-width (a
+      // pooled high-order AR model split the east–west peak into two poles)
+      const halfWidth = -truth.sigma / (2 * Math.PI);
+      const near = natural.filter((m) => Math.abs(m.frequencyHz - truth.frequencyHz) < halfWidth);
+      expect(near, track).toHaveLength(1);
+      const est = near[0];
+      expect(Math.abs(est.frequencyHz - truth.frequencyHz), track).toBeLessThan(track === 'greyscar' ? 0.04 : 0.01);
+      expect(Math.abs(est.dampingPercent - truth.dampingPercent), track).toBeLessThan(2);
+      expect(est.dampingCi[0]).toBeLessThan(est.dampingPercent);
+      expect(est.dampingCi[1]).toBeGreaterThan(est.dampingPercent);
+      // shape: relative angles against the eigenvector on every channel that moves (|true| ≥ 0.05)
+      const angles = est.shape.filter((e) => e.channel.endsWith('.angle'));
+      const ref = angles.reduce((b, e) => (e.magnitude > b.magnitude ? e : b));
+      const tru = modeOutputShape(model, truth, angles.map((e) => e.channel), { angleReference: TARROW_ANGLE_REFERENCE, reference: ref.channel });
+      expect(mac(angles, tru), track).toBeGreaterThan(0.95);
+      for (const t of tru) {
+        if (t.magnitude < 0.05) continue;
+        const e = angles.find((x) => x.channel === t.channel)!;
+        expect(Math.abs(((e.angleDeg - ref.angleDeg - t.angleDeg + 540) % 360) - 180), `${track} ${t.channel}`).toBeLessThan(15);
+      }
+    }
+    // the Greyscar mode lives in the Greyscar channels
+    const gs = natural.find((m) => m.frequencyHz > 1 && m.frequencyHz < 1.6)!;
+    expect(gs.shape.filter((e) => e.channel.endsWith('.angle')).sort((a, b) => b.magnitude - a.magnitude)[0].channel).toBe('greyscar.angle');
+  });
+
   it('estimates the north–south mode at 3 % and its shape against the true eigenvector', () => {
     const transfer = transferAtDampingPercent('north-south', 3)!;
     const model = buildTarrowModel(transfer);

@@ -8,6 +8,7 @@ import {
   arSpectrum,
   autocovariance,
   levinsonDurbin,
+  modifiedYuleWalker,
   poleToMode,
   pooledAutocorrelation,
   refineArRoot,
@@ -15,6 +16,7 @@ import {
   yuleWalker,
 } from './ar';
 import { ModalInputError } from './errors';
+import { runReference } from '../tests/reference/run-reference';
 import type { Complex } from './linalg';
 import { createRng } from './random';
 
@@ -251,5 +253,54 @@ describe('bad input', () => {
     expect(() => arLeastSquares([chanA, chanB.subarray(0, 100)], 2)).toThrow(
       new ModalInputError('arLeastSquares: channels differ in length (3000 and 100 samples)'),
     );
+  });
+});
+
+describe('modifiedYuleWalker', () => {
+  it("recovers a damped cosine's AR(2) exactly from the lags above the noise, whatever lag 0 holds (mathematics, CHECKS.md §1)", () => {
+    // r[k] = A·ρ^k·cos(ωk + φ) for k ≥ 1 obeys r[k] = −a1·r[k−1] − a2·r[k−2]; white measurement
+    // noise adds to r[0] only, which equations from lag 3 never touch
+    const [, a1, a2] = ar2(0.56, 7.5);
+    const rho = Math.sqrt(a2);
+    const w = Math.acos(-a1 / (2 * rho));
+    const r = Array.from({ length: 14 }, (_, k) => 2.3 * rho ** k * Math.cos(w * k + 0.4));
+    r[0] += 5; // noise variance
+    const a = modifiedYuleWalker(r, 2, 3, 10);
+    expect(a[0]).toBe(1);
+    expect(a[1]).toBeCloseTo(a1, 12);
+    expect(a[2]).toBeCloseTo(a2, 12);
+    const m = poleToMode(arRoots(a).find((z) => z.im > 0)!, FS);
+    expect(m.frequencyHz).toBeCloseTo(0.56, 10);
+    expect(m.dampingPercent).toBeCloseTo(7.5, 8);
+  });
+
+  it('solves the extended equations as numpy.linalg.lstsq does on the same system (library)', () => {
+    const r = Array.from(autocovariance(x4, 20));
+    const cases = [
+      { p: 3, first: 3, eq: 9 },
+      { p: 5, first: 2, eq: 12 },
+    ];
+    const ref = runReference(
+      cases.map(({ p, first, eq }) => ({
+        kind: 'lstsq',
+        a: Array.from({ length: eq }, (_, e) => Array.from({ length: p }, (__, j) => r[Math.abs(first + e - j - 1)])),
+        b: Array.from({ length: eq }, (_, e) => [-r[first + e]]),
+      })),
+    );
+    cases.forEach(({ p, first, eq }, i) => {
+      const ours = modifiedYuleWalker(r, p, first, eq);
+      const theirs = (ref.results[i] as { x: number[][] }).x.map((row) => row[0]);
+      theirs.forEach((v, j) => expect(Math.abs(ours[j + 1] - v)).toBeLessThan(1e-10 * (1 + Math.abs(v))));
+    });
+  });
+
+  it('refuses bad arguments with precise messages', () => {
+    expect(() => modifiedYuleWalker([1, 0.5, 0.2], 0, 1, 2)).toThrow(new ModalInputError('modifiedYuleWalker: order must be a positive integer, got 0'));
+    expect(() => modifiedYuleWalker([1, 0.5, 0.2], 1, 0, 2)).toThrow(new ModalInputError('modifiedYuleWalker: firstLag must be a positive integer, got 0'));
+    expect(() => modifiedYuleWalker([1, 0.5, 0.2], 2, 1, 1)).toThrow(new ModalInputError('modifiedYuleWalker: equations must be an integer ≥ order 2, got 1'));
+    expect(() => modifiedYuleWalker([1, 0.5, 0.2], 1, 2, 2)).toThrow(
+      new ModalInputError('modifiedYuleWalker: the equations need autocovariances up to lag 3, got 2'),
+    );
+    expect(() => modifiedYuleWalker([1, NaN, 0.2, 0.1], 1, 2, 2)).toThrow(new ModalInputError('modifiedYuleWalker: r[1] is NaN; every lag must be finite'));
   });
 });

@@ -2,7 +2,7 @@ import { Matrix } from 'ml-matrix';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { maxPairedDistance, runReference } from '../tests/reference/run-reference';
 import { ModalInputError } from './errors';
-import { balanceInPlace, complexEigenvalues, lstsq, lstsqDetailed, polyRoots, svd } from './linalg';
+import { balanceInPlace, complexEigenvalues, leadingGeneralizedEigenvector, lstsq, lstsqDetailed, polyRoots, svd } from './linalg';
 import { createRng } from './random';
 
 // Every reference value below comes from Debian's numpy (library), computed in one call of
@@ -251,5 +251,55 @@ describe('lstsq', () => {
 
   it('refuses mismatched shapes with a precise message', () => {
     expect(() => lstsq(new Matrix(3, 2), new Matrix(4, 1))).toThrow('lstsq: A has 3 rows but b has 4');
+  });
+});
+
+describe('leadingGeneralizedEigenvector', () => {
+  // A symmetric (indefinite), B symmetric positive definite and far from diagonal
+  const n = 7;
+  const G = randMatrix(n, n);
+  const S = randMatrix(n, n);
+  const A = S.map((row, i) => row.map((v, j) => v + S[j][i]));
+  const B = G.map((row, i) => row.map((_, j) => G[i].reduce((s, g, k) => s + g * G[j][k], 0) + (i === j ? 0.5 : 0)));
+  const flat = (m: number[][]) => Float64Array.from(m.flat());
+  let pencil: [number, number][] = [];
+
+  beforeAll(() => {
+    // the pencil's eigenvalues are those of B⁻¹A: numpy.linalg.lstsq (square, full rank: B⁻¹A
+    // exactly), then numpy.linalg.eigvals
+    const inv = runReference([{ kind: 'lstsq', a: B, b: A }]).results[0] as { x: number[][] };
+    pencil = (runReference([{ kind: 'eigvals', a: inv.x }]).results[0] as { values: [number, number][] }).values;
+  });
+
+  it('gives the largest eigenvalue of the pencil A·w = λ·B·w, as numpy finds it for B⁻¹A (library: numpy.linalg.eigvals)', () => {
+    const { lambda } = leadingGeneralizedEigenvector(flat(A), flat(B), n);
+    const top = Math.max(...pencil.map(([re]) => re));
+    expect(Math.max(...pencil.map(([, im]) => Math.abs(im)))).toBeLessThan(1e-9); // symmetric-definite: real
+    expect(Math.abs(lambda - top)).toBeLessThan(1e-10 * Math.max(1, Math.abs(top)));
+  });
+
+  it('returns w with A·w = λ·B·w and wᵀBw = 1, maximising the Rayleigh quotient wᵀAw / wᵀBw (textbook: Golub & Van Loan §8.7)', () => {
+    const { lambda, w } = leadingGeneralizedEigenvector(flat(A), flat(B), n);
+    const mul = (m: number[][], v: ArrayLike<number>) => m.map((row) => row.reduce((s, x, j) => s + x * v[j], 0));
+    const Aw = mul(A, w);
+    const Bw = mul(B, w);
+    for (let i = 0; i < n; i++) expect(Math.abs(Aw[i] - lambda * Bw[i])).toBeLessThan(1e-9 * (1 + Math.abs(lambda)));
+    expect(Bw.reduce((s, x, i) => s + x * w[i], 0)).toBeCloseTo(1, 10);
+    const r = createRng(7);
+    for (let t = 0; t < 50; t++) {
+      const v = Array.from({ length: n }, () => r.normal());
+      const q = mul(A, v).reduce((s, x, i) => s + x * v[i], 0) / mul(B, v).reduce((s, x, i) => s + x * v[i], 0);
+      expect(q).toBeLessThanOrEqual(lambda + 1e-12);
+    }
+  });
+
+  it('refuses a B that is not positive definite and non-finite entries', () => {
+    const I = Float64Array.from({ length: 4 }, (_, k) => (k % 3 === 0 ? 1 : 0));
+    expect(() => leadingGeneralizedEigenvector(I, Float64Array.from([1, 0, 0, -1]), 2)).toThrow(
+      new ModalInputError('leadingGeneralizedEigenvector: B is not positive definite'),
+    );
+    expect(() => leadingGeneralizedEigenvector(Float64Array.from([1, NaN, NaN, 1]), I, 2)).toThrow(
+      new ModalInputError('leadingGeneralizedEigenvector: every matrix entry must be a finite number'),
+    );
   });
 });

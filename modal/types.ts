@@ -97,11 +97,11 @@ export interface AmbientMode extends ModePole {
   forced: boolean;
   shape: ShapeEntry[];
   /**
-   * How far the mode stands out of the spectral floor, as an amplitude ratio (√ of a density
-   * ratio): for the Yule-Walker method, the Welch density of the mode's modal-filter output at its
-   * frequency over the median across the band; otherwise the channels' normalised densities summed.
-   * About 1 for noise, from ~2 for a weak local mode to ~50 for a lightly damped inter-area mode.
-   * Used for ranking; options.minStrength is its least value.
+   * How far the mode stands out of the spectral floor, dB (10·log10 of a density ratio): for the
+   * Yule-Walker method, the Welch density of the mode's modal-filter output at its frequency over
+   * its median across the band; otherwise the channels' normalised densities summed. About 0 dB
+   * for noise, ~10 dB for a weak well-damped local mode, 40–50 dB for a lightly damped inter-area
+   * mode. Used for ranking; options.minStrength is its least value.
    */
   strength: number;
   /**

@@ -9,7 +9,8 @@
 // corridor flow) with 3 decimals.
 import { mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
-import { EXCITATION_GAIN, EXCITATION_ZERO_MW, transferAtDampingPercent } from '../modal/simulator';
+import { TARROW_MECHANICAL_NOISE_MW } from '../fixtures/tarrow-network';
+import { DEFAULT_LOAD_NOISE, EXCITATION_GAIN, EXCITATION_ZERO_MW, transferAtDampingPercent } from '../modal/simulator';
 import { simulateCommand } from './keel';
 
 const DIR = path.resolve(__dirname, '../fixtures');
@@ -100,6 +101,9 @@ function main(): void {
       ].join('\n'),
     );
   }
+  const unitNoise = Object.entries(TARROW_MECHANICAL_NOISE_MW)
+    .map(([m, mw]) => `${m}: like a ${mw} MW load, ${(DEFAULT_LOAD_NOISE * mw).toFixed(0)} MW RMS`)
+    .join('; ');
   const p5 = transferAtDampingPercent('north-south', 5)!;
   const p3 = transferAtDampingPercent('north-south', 3)!;
   const readme = [
@@ -122,6 +126,14 @@ function main(): void {
     `(D_exc/M = ${EXCITATION_GAIN.toFixed(4)} · (${EXCITATION_ZERO_MW.toFixed(1)} − P)/1000 s⁻¹, negative above ${EXCITATION_ZERO_MW.toFixed(0)} MW),`,
     'calibrated to 9.0 % at 500 MW and 3.0 % at 2500 MW. The north–south damping crosses',
     `**5 % at ${p5.toFixed(0)} MW** and **3 % at ${p3.toFixed(0)} MW** (modal/simulator/model.ts, checked in model.test.ts).`,
+    '',
+    '## Ambient drive',
+    '',
+    'Every load fluctuates randomly (the RMS of its 1-second average is 0.3 % of the load), and so does',
+    `the mechanical power of the Greyscar hydro units (${unitNoise}; turbulent flow through penstock`,
+    'and turbine, TARROW_MECHANICAL_NOISE_MW in fixtures/tarrow-network.ts). That unit noise is what excites the',
+    'Greyscar local mode, which load changes elsewhere in Highmoor barely reach; it acts on the rotor',
+    'only, so the operating point, the true modes and the calibration above are unchanged by it.',
     '',
     '## Files',
     '',

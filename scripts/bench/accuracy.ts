@@ -256,10 +256,12 @@ function angleNames(shape: ShapeEntry[]): string[] {
 
 /**
  * The estimate of a true mode in one window: the strongest natural estimate inside its track's
- * band (as the scan's track assignment takes it) within `tol` Hz of the truth.
+ * band (as the scan's track assignment takes it) within 0.05 Hz of the truth, or within the
+ * mode's half-power half-width σ/2π when that is wider (0.14 Hz for the 10 % Greyscar mode).
  */
-function trackEstimate(modes: AmbientMode[], truth: TrueMode, tol: number): AmbientMode | undefined {
+function trackEstimate(modes: AmbientMode[], truth: TrueMode): AmbientMode | undefined {
   const track = TARROW_TRACKS.find((t) => t.code === truth.track)!;
+  const tol = Math.max(0.05, -truth.sigma / (2 * Math.PI));
   return modes
     .filter((m) => !m.forced && m.frequencyHz >= track.minHz && m.frequencyHz <= track.maxHz && Math.abs(m.frequencyHz - truth.frequencyHz) <= tol)
     .sort((a, b) => b.strength - a.strength)[0];
@@ -290,7 +292,7 @@ function runAmbient(model: TarrowModel, truths: { ns: TrueMode; ew: TrueMode; gs
     }
     if (w.modes.some((m) => m.forced)) tally.forcedMarks++;
     for (const key of ['ns', 'ew', 'gs'] as const) {
-      const m = trackEstimate(w.modes, truths[key], 0.05);
+      const m = trackEstimate(w.modes, truths[key]);
       if (m) scoreMode(model, truths[key], m, tally[key]);
     }
   }

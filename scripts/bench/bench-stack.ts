@@ -96,9 +96,20 @@ export interface Proc {
   stop(signal?: NodeJS.Signals): Promise<void>;
 }
 
-/** `tsx <file>` from `root` (default: this checkout) with the environment added. */
+/**
+ * `tsx <file>` from `root` (default: this checkout) with the environment added, in a session of its
+ * own (setsid), as a service manager would start it. That matters on Linux with autogroup
+ * scheduling (kernel.sched_autogroup_enabled = 1, the common default): the CPU is shared fairly
+ * between sessions first, so processes started in the benchmark's own session would split ONE
+ * session's share between them — two workers would get no more CPU than one on a busy machine.
+ */
 export function spawnProc(file: string, env: Record<string, string>, name: string, root = repoRoot, echo = false): Proc {
-  const child = spawn(path.join(root, 'node_modules', '.bin', 'tsx'), [file], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  const child = spawn(path.join(root, 'node_modules', '.bin', 'tsx'), [file], {
+    cwd: root,
+    env: { ...process.env, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+    detached: true,
+  });
   const logs: string[] = [];
   const keep = (d: Buffer) => {
     for (const line of d.toString().split('\n')) {

@@ -45,6 +45,8 @@ interface RunResult {
   /** CPU seconds of the worker processes (with their sandboxed scan processes) and of PostgreSQL during the run. */
   workerCpu: number;
   dbCpu: number | null;
+  /** Blocks each worker process ran (from its "scan job … done" lines). */
+  blocksPerWorker: number[];
 }
 
 async function main() {
@@ -110,6 +112,7 @@ async function main() {
         await ctx.pool.query<{ n: number; d: number }>('select count(*)::int as n, count(distinct start_time)::int as d from scan_windows where analysis_id = $1', [analysis.id])
       ).rows[0];
       const expected = Number((done.timings as { windows?: number } | null)?.windows ?? NaN);
+      const blocksPerWorker = procs.map((p) => p.logs.filter((l) => new RegExp(`scan job scan-${analysis.id}-w\\d+ done`).test(l)).length);
       console.log(`${label}: ${seconds.toFixed(1)} s (${loadLine()})`);
       return {
         label,
@@ -121,6 +124,7 @@ async function main() {
         analysisId: analysis.id,
         workerCpu: (cpu1.w - cpu0.w) / 1000,
         dbCpu: cpu0.db === null || cpu1.db === null ? null : (cpu1.db - cpu0.db) / 1000,
+        blocksPerWorker,
       };
     };
 
@@ -131,17 +135,20 @@ async function main() {
 
     console.log('');
     console.log(
-      `${'run'.padEnd(22)} ${'workers'.padStart(7)} ${'seconds'.padStart(8)} ${'CPU s: workers'.padStart(14)} ${'db'.padStart(5)} ${'windows'.padStart(8)} ${'distinct'.padStart(8)} ${'expected'.padStart(8)}  check`,
+      `${'run'.padEnd(22)} ${'workers'.padStart(7)} ${'seconds'.padStart(8)} ${'CPU s: workers'.padStart(14)} ${'db'.padStart(5)} ${'cores used'.padStart(10)} ${'blocks/worker'.padStart(13)} ${'windows'.padStart(8)} ${'distinct'.padStart(8)} ${'expected'.padStart(8)}  check`,
     );
     for (const r of results) {
       const ok = r.windows === r.expected && r.distinct === r.windows;
       console.log(
-        `${r.label.padEnd(22)} ${String(r.workers).padStart(7)} ${r.seconds.toFixed(1).padStart(8)} ${r.workerCpu.toFixed(1).padStart(14)} ${(r.dbCpu === null ? '—' : r.dbCpu.toFixed(1)).padStart(5)} ${String(r.windows).padStart(8)} ${String(r.distinct).padStart(8)} ${String(r.expected).padStart(8)}  ${ok ? 'every window once' : 'WRONG'}`,
+        `${r.label.padEnd(22)} ${String(r.workers).padStart(7)} ${r.seconds.toFixed(1).padStart(8)} ${r.workerCpu.toFixed(1).padStart(14)} ${(r.dbCpu === null ? '—' : r.dbCpu.toFixed(1)).padStart(5)} ${(r.workerCpu / r.seconds).toFixed(2).padStart(10)} ${(r.blocksPerWorker.some((b) => b > 0) ? r.blocksPerWorker.join(' + ') : 'unsplit').padStart(13)} ${String(r.windows).padStart(8)} ${String(r.distinct).padStart(8)} ${String(r.expected).padStart(8)}  ${ok ? 'every window once' : 'WRONG'}`,
       );
     }
     const speedup = results[0].seconds / results[1].seconds;
     console.log(`\nspeed-up with two workers: ×${speedup.toFixed(2)} (${speedup >= 1.3 ? 'clearly faster' : 'NOT clearly faster'}); ${loadLine()}`);
-    console.log('(CPU s: CPU time the worker processes, their sandboxed scan processes and PostgreSQL used during the run — the work, whatever the machine load)');
+    console.log(
+      '(CPU s: CPU time the worker processes with their sandboxed scan processes, and PostgreSQL, used during the run — the work, whatever the machine load; ' +
+        'cores used = worker CPU s / seconds: the CPU the workers actually got. On a shared, busy machine a second worker only helps as far as the scheduler gives it a core.)',
+    );
 
     if (args.unsplit) {
       // the split scan against the unsplit one: the same windows, the north–south estimates compared
