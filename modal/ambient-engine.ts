@@ -25,10 +25,12 @@
 //        most of the correlation, are nulled in y) — and a low-order MODIFIED Yule-Walker fit of
 //        y's autocovariance (AR order 3, equations from lag 3: modal/ar.ts modifiedYuleWalker).
 //        A pooled high-order AR model of all channels splits a well-damped mode that is weak in
-//        most channels into two or three poles (measured on simulated Tarrow data: the 7.5 %
-//        east–west mode came out as ≈0.52 + 0.59 Hz in most windows, damping bias +1.4 points,
-//        spread 1.6; the 10 % Greyscar local mode, seen in two channels of 21, was never found);
-//        y holds one mode on a nearly flat floor, which three poles describe. The candidate must
+//        most channels into two or three poles (measured on the benchmark's simulated Tarrow
+//        windows at 2500 MW: the 7.5 % east–west mode came out as two poles, e.g. ≈0.52 + 0.59 Hz,
+//        in 2 windows of 3, damping bias +1.5 points, spread 1.7; the 10 % Greyscar local mode,
+//        seen in two channels of 21, was never found); y holds one mode on a nearly flat floor,
+//        which three poles describe (east–west bias −0.1, spread 0.5; Greyscar found in every
+//        window, bias ≈ 0, spread 0.8). The candidate must
 //        stand minStrength above the floor of y's spectrum; the other stage-1 poles of a peak
 //        already estimated are skipped, and estimates closer than a half-power half-width are one
 //        mode (the one standing higher stays). acf-matrix-pencil, or a filter without a pole near
@@ -42,9 +44,9 @@
 //        the eigenvector C·v; fitting the cross-correlations (lags 1 … 6 s) on the exponentials of
 //        all reported modes and the remaining stage-1 poles separates the mode from the spectral
 //        tail of a strong neighbour, which bends the first eigenvector of the cross-spectral matrix
-//        (measured: 20–25° on the Highmoor channels of the east–west mode, whose north–south tail
-//        is as large as its own peak there; with residues ≈ 4°, and ≈ 1° for the north–south
-//        mode). Without a filter (acf-matrix-pencil): the first eigenvector of the cross-spectral
+//        (measured, median over windows: 17° on the Highmoor channels of the east–west mode, whose
+//        north–south tail is as large as its own peak there, 1 window in 3 within 15°; with
+//        residues 3–4°, 97 % of windows within 15°, and ≈ 1° for the north–south mode). Without a filter (acf-matrix-pencil): the first eigenvector of the cross-spectral
 //        matrix at the mode's bin.
 //
 // Confidence intervals: delete-a-group jackknife (textbook: Efron & Tibshirani 1993, §11; for
@@ -319,7 +321,7 @@ interface ModalFilterFit {
   reps: ((z: Complex) => Complex | null)[];
   /** Filter weight per analysis channel (on the channel divided by its standard deviation). */
   w: Float64Array;
-  /** Welch density of the filter output at a band bin over its median across the band. */
+  /** Welch density of the filter output at a band bin over its median across the band, dB. */
   strengthAt: (bin: number) => number;
   /** The filter output over the window, centred. */
   y: Float64Array;
@@ -1385,7 +1387,6 @@ export class AmbientEngine {
     return R;
   }
 
-
   /**
    * Stage 2 of the Yule-Walker method for one candidate: the modal filter — the channel
    * combination y = Σ w_c·x_c/σ_c whose variance is most concentrated at the candidate's bin
@@ -1393,7 +1394,9 @@ export class AmbientEngine {
    * other modes, which carry most of R₀, are nulled in y) — then a low-order modified Yule-Walker
    * fit on y's autocovariance, lags MYW_FIRST_LAG… (modal/ar.ts modifiedYuleWalker). Jackknife
    * replicates refit y's autocovariance without each group's lag products, with the same filter.
-   * Null when the fit has no pole near the candidate.
+   * `z: null` when the candidate's bin stands less than minStrength above the floor of y's
+   * spectrum (a pole that only shapes the noise floor); null when no filter or no pole is found
+   * (the caller falls back to the channel-weighted pooled fit).
    */
   private modalFilterFit(
     ws: number,
@@ -1647,8 +1650,6 @@ export class AmbientEngine {
     );
   }
 
-
-
   /** Normalised spectral trace per band bin: Σ over active channels and segments of |X/σ|². */
   private bandTrace(segs: SegmentData[], active: boolean[], sd: Float64Array): Float64Array {
     const nb = this.nb;
@@ -1693,8 +1694,9 @@ export class AmbientEngine {
         vi[s * n + i] = segs[s].im[c * nb + bin] / sd[c];
       }
     }
-    let { ur, ui, trace } = principalVector(vr, vi, M, n);
-    if (filterW) ({ ur, ui } = filterCrossSpectrum(vr, vi, M, n, chans.map((c) => filterW[c])));
+    const pv = principalVector(vr, vi, M, n);
+    const trace = pv.trace;
+    const { ur, ui } = filterW ? filterCrossSpectrum(vr, vi, M, n, chans.map((c) => filterW[c])) : pv;
     const shape = shapeEntries(
       chans.map((c) => this.o.channels[c]),
       Array.from(chans, (c, i) => ({ re: ur[i] * sd[c], im: ui[i] * sd[c], part: Math.hypot(ur[i], ui[i]) })),
@@ -1835,10 +1837,12 @@ export function principalVector(
 }
 
 /**
- * Mode shape against a modal filter: the cross-spectrum of every channel with the filter output
- * y = Σ w_i·v_i at the bin, S_iy = (1/M)·Σ_s v_{s,i}·conj(y_s) (normalised channels). Modes the
- * filter nulls drop out of it, so a strong neighbouring mode's spectral tail does not bend the shape
- * of a weaker one. Returned as a unit vector like principalVector's.
+ * Cross-spectrum of every channel with a modal filter's output y = Σ w_i·v_i at the bin,
+ * S_iy = (1/M)·Σ_s v_{s,i}·conj(y_s) (normalised channels), as a unit vector like
+ * principalVector's: the projection vector of the forced test for a mode found through a modal
+ * filter, and its shape until the residue fit replaces it. (Not a shape estimate to trust next to
+ * a strong mode: the neighbour's spectral tail still enters through its excitation's correlation
+ * with the mode's — the residue fit removes it.)
  */
 export function filterCrossSpectrum(
   vr: Float64Array,

@@ -127,7 +127,7 @@ export async function runScan(ctx: AnalysisContext, job: JobLike): Promise<ScanO
  * Seconds of window starts per block when a scan is shared between workers (default 3600: an hour
  * of windows, 60 at the default 1-minute step). KEEL_SCAN_BLOCK_SECONDS=0 never splits.
  */
-export function scanBlockSeconds(env: NodeJS.ProcessEnv = process.env): number {
+export function scanBlockSeconds(env: Record<string, string | undefined> = process.env): number {
   const raw = env.KEEL_SCAN_BLOCK_SECONDS;
   if (raw === undefined || raw === '') return 3600;
   const v = Number(raw);

@@ -20,6 +20,14 @@
 // positive at light transfer and negative above P0. It acts on the machine's speed relative to the
 // centre of inertia, so it shapes the oscillations without touching the system frequency response.
 //
+// Ambient drive (the B matrix): every load's random fluctuation, and the random mechanical power of
+// the Greyscar hydro units (TARROW_MECHANICAL_NOISE_MW: turbulent flow through penstock and
+// turbine). The Greyscar units sit behind a long line from Moorgate, so the Highmoor loads' noise
+// reaches their rotor at about 1 % and the Greyscar local mode (1.35 Hz) stayed invisible in ambient
+// data; their own mechanical noise acts on that rotor directly and makes it a clear peak in the
+// Greyscar channels. It adds inputs only: the operating point, the eigenvalues and the calibration
+// below are unchanged.
+//
 // Calibration (EXCITATION_GAIN and EXCITATION_ZERO_MW below, solved by Newton on the true
 // eigenvalues so that the north–south mode has 9.0 % damping at 500 MW and 3.0 % at 2500 MW):
 //   transfer MW   north–south Hz / %    east–west Hz / %    Greyscar Hz / %

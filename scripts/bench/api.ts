@@ -3,9 +3,11 @@
 //   1. the bootstrap of `npm test` (throwaway PostgreSQL 15 + Redis on loopback, migrate, seed),
 //   2. a YEAR of scan results (scripts/bench/fill-year.ts: ~1.6 M estimates with shapes, windows with
 //      corridor transfer, the alerts the rule raises), then ANALYZE,
-//   3. the server (`server/main.ts`, NODE_ENV=production: no response-schema check, which on the
-//      transfer study's ~10 000 points costs more than the query; see server/config.ts), signed in
-//      as the demo planner (cookie session, as the browser),
+//   3. the server (`server/main.ts`) with NODE_ENV=production, as deployed: it skips the check of
+//      every answer against its response schema (server/config.ts). Measured one request at a time
+//      on the filled year, that check made no difference beyond the noise (Watch, Trends and the
+//      7-day study alike), so development mode gives the same figures. Signed in as the demo
+//      planner (cookie session, as the browser);
 //   4. for each endpoint, autocannon with 50 connections on loopback for --duration seconds (after
 //      a short warm-up): p50 / p95 / p99 latency from every response, requests/s, errors
 //      (non-2xx, socket errors, timeouts), PASS/FAIL against the targets.
@@ -26,7 +28,7 @@ import { parseArgs } from 'node:util';
 import autocannon from 'autocannon';
 import pg from 'pg';
 import { DEMO_PASSWORD, DEMO_PEOPLE } from '../../db/seed';
-import { freePort, loadLine, pad, postgresCpuMs, procCpuMs, procStatusMb, repoRoot, scriptPid, signIn, stackEnv, startBenchServices, startServer } from './bench-stack';
+import { freePort, loadLine, pad, cpuBetween, postgresCpuSnapshot, procCpuMs, procStatusMb, repoRoot, scriptPid, signIn, stackEnv, startBenchServices, startServer } from './bench-stack';
 import { fillEstimates } from './fill-year';
 
 const { values: args } = parseArgs({
@@ -68,10 +70,10 @@ async function cannon(url: string, cookie: string, connections: number, duration
   const times: number[] = [];
   let bytes = 0;
   const inst = autocannon({ url, connections, duration, headers: { cookie, accept: 'application/json' }, timeout: 30 });
-  inst.on('response', (_client: unknown, status: number, resBytes: number, ms: number) => {
+  // every answer's latency (autocannon's own summary has no 95th percentile)
+  inst.on('response', (_client: unknown, _status: number, resBytes: number, ms: number) => {
     times.push(ms);
     bytes += resBytes;
-    void status;
   });
   const r = await inst;
   times.sort((a, b) => a - b);
@@ -149,11 +151,12 @@ async function main() {
       await cannon(base + e.path, cookie, Math.min(10, connections), 2); // warm-up
       const load = os.loadavg()[0];
       const pgData = svc.pgData ?? args['pg-data'] ?? null;
-      const cpu0 = { server: procCpuMs(serverPid), db: pgData ? postgresCpuMs(pgData) : null };
+      const cpu0 = { server: procCpuMs(serverPid), db: pgData ? postgresCpuSnapshot(pgData) : null };
       const r = await cannon(base + e.path, cookie, connections, duration);
-      const cpu1 = { server: procCpuMs(serverPid), db: pgData ? postgresCpuMs(pgData) : null };
-      const per = (a: number | null, b: number | null) => (a === null || b === null || r.requests === 0 ? null : (b - a) / r.requests);
-      rows.push({ ...e, ...r, serverCpu: per(cpu0.server, cpu1.server), dbCpu: per(cpu0.db, cpu1.db) });
+      const cpu1 = { server: procCpuMs(serverPid), db: pgData ? postgresCpuSnapshot(pgData) : null };
+      const per = (ms: number | null) => (ms === null || r.requests === 0 ? null : ms / r.requests);
+      const serverMs = cpu0.server === null || cpu1.server === null ? null : cpu1.server - cpu0.server;
+      rows.push({ ...e, ...r, serverCpu: per(serverMs), dbCpu: per(cpuBetween(cpu0.db, cpu1.db)) });
       console.log(`  ${e.name}: done (load ${load.toFixed(1)})`);
     }
     const line = (cells: string[]) => console.log(cells.join('  '));

@@ -270,16 +270,36 @@ export function procCpuMs(pid: number): number | null {
   }
 }
 
-/** CPU time used so far by the backends of a PostgreSQL cluster we started (children of its postmaster), ms. */
-export function postgresCpuMs(pgData: string): number | null {
+/** CPU time so far (ms) of the given processes and everything below them, by pid. */
+export function cpuSnapshot(roots: number[]): Map<number, number> {
+  const out = new Map<number, number>();
+  for (const root of roots) {
+    for (const p of [root, ...descendants(root)]) {
+      const ms = procCpuMs(p);
+      if (ms !== null) out.set(p, ms);
+    }
+  }
+  return out;
+}
+
+/** The same for every process of a PostgreSQL cluster we started (its postmaster and children). */
+export function postgresCpuSnapshot(pgData: string): Map<number, number> | null {
   try {
-    const postmaster = Number(fs.readFileSync(path.join(pgData, 'postmaster.pid'), 'utf8').split('\n')[0]);
-    let ms = procCpuMs(postmaster) ?? 0;
-    for (const p of descendants(postmaster)) ms += procCpuMs(p) ?? 0;
-    return ms;
+    return cpuSnapshot([Number(fs.readFileSync(path.join(pgData, 'postmaster.pid'), 'utf8').split('\n')[0])]);
   } catch {
     return null;
   }
+}
+
+/**
+ * CPU ms used between two snapshots: what the processes alive at the end used since the start (a
+ * process that ended in between is lost; one that started counts whole).
+ */
+export function cpuBetween(a: Map<number, number> | null, b: Map<number, number> | null): number | null {
+  if (!a || !b) return null;
+  let ms = 0;
+  for (const [pid, end] of b) ms += Math.max(0, end - (a.get(pid) ?? 0));
+  return ms;
 }
 
 export function loadLine(): string {

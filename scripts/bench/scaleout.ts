@@ -22,7 +22,7 @@ import { heartbeatKeyPattern } from '../../jobs/queues';
 import { writeCsv } from '../../modal/formats/csv';
 import { dailyTransferMw, simulateDayChunks } from '../../modal/simulator';
 import { LIGHT_CHANNELS, storeDemoFile } from '../seed-demo';
-import { descendants, loadLine, postgresCpuMs, procCpuMs, spawnProc, startBenchServices, waitFor, type Proc } from './bench-stack';
+import { cpuBetween, cpuSnapshot, loadLine, postgresCpuSnapshot, spawnProc, startBenchServices, waitFor, type Proc } from './bench-stack';
 
 const { values: args } = parseArgs({
   options: {
@@ -92,8 +92,7 @@ async function main() {
       if (stale.length) await redis.del(...stale);
       for (let i = 0; i < workers; i++) procs.push(spawnProc('jobs/worker.ts', { ...baseEnv, KEEL_SCAN_BLOCK_SECONDS: block }, `worker${i + 1}`));
       await waitFor(async () => (await redis.keys(heartbeatKeyPattern(prefix))).length === workers, `${workers} worker(s) up`, 120_000);
-      const treeCpu = () => procs.reduce((sum, p) => sum + [p.child.pid!, ...descendants(p.child.pid!)].reduce((a, pid) => a + (procCpuMs(pid) ?? 0), 0), 0);
-      const cpu0 = { w: treeCpu(), db: svc.pgData ? postgresCpuMs(svc.pgData) : null };
+      const cpu0 = { w: cpuSnapshot(procs.map((p) => p.child.pid!)), db: svc.pgData ? postgresCpuSnapshot(svc.pgData) : null };
       const t = performance.now();
       await enqueueScan(ctx.queues, { analysisId: analysis.id });
       const done = await waitFor(
@@ -107,7 +106,7 @@ async function main() {
         250,
       );
       const seconds = (performance.now() - t) / 1000;
-      const cpu1 = { w: treeCpu(), db: svc.pgData ? postgresCpuMs(svc.pgData) : null };
+      const cpu1 = { w: cpuSnapshot(procs.map((p) => p.child.pid!)), db: svc.pgData ? postgresCpuSnapshot(svc.pgData) : null };
       const c = (
         await ctx.pool.query<{ n: number; d: number }>('select count(*)::int as n, count(distinct start_time)::int as d from scan_windows where analysis_id = $1', [analysis.id])
       ).rows[0];
@@ -122,8 +121,8 @@ async function main() {
         distinct: c.d,
         expected,
         analysisId: analysis.id,
-        workerCpu: (cpu1.w - cpu0.w) / 1000,
-        dbCpu: cpu0.db === null || cpu1.db === null ? null : (cpu1.db - cpu0.db) / 1000,
+        workerCpu: cpuBetween(cpu0.w, cpu1.w)! / 1000,
+        dbCpu: (cpuBetween(cpu0.db, cpu1.db) ?? NaN) / 1000,
         blocksPerWorker,
       };
     };
@@ -140,7 +139,7 @@ async function main() {
     for (const r of results) {
       const ok = r.windows === r.expected && r.distinct === r.windows;
       console.log(
-        `${r.label.padEnd(22)} ${String(r.workers).padStart(7)} ${r.seconds.toFixed(1).padStart(8)} ${r.workerCpu.toFixed(1).padStart(14)} ${(r.dbCpu === null ? '—' : r.dbCpu.toFixed(1)).padStart(5)} ${(r.workerCpu / r.seconds).toFixed(2).padStart(10)} ${(r.blocksPerWorker.some((b) => b > 0) ? r.blocksPerWorker.join(' + ') : 'unsplit').padStart(13)} ${String(r.windows).padStart(8)} ${String(r.distinct).padStart(8)} ${String(r.expected).padStart(8)}  ${ok ? 'every window once' : 'WRONG'}`,
+        `${r.label.padEnd(22)} ${String(r.workers).padStart(7)} ${r.seconds.toFixed(1).padStart(8)} ${r.workerCpu.toFixed(1).padStart(14)} ${(r.dbCpu === null || Number.isNaN(r.dbCpu) ? '—' : r.dbCpu.toFixed(1)).padStart(5)} ${(r.workerCpu / r.seconds).toFixed(2).padStart(10)} ${(r.blocksPerWorker.some((b) => b > 0) ? r.blocksPerWorker.join(' + ') : 'unsplit').padStart(13)} ${String(r.windows).padStart(8)} ${String(r.distinct).padStart(8)} ${String(r.expected).padStart(8)}  ${ok ? 'every window once' : 'WRONG'}`,
       );
     }
     const speedup = results[0].seconds / results[1].seconds;
