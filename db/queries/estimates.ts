@@ -1,7 +1,7 @@
 // Mode estimates of tracks over time: raw ranges, time buckets for long spans (from the rollups,
 // estimate_rollups, where whole rollup buckets fit), one estimate with its shape and source, and the
 // newest estimate of each track with its scan step.
-import { and, asc, desc, eq, gte, inArray, lte, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, getTableColumns, gte, inArray, lte, sql, type SQL } from 'drizzle-orm';
 import type { DbOrTx } from '../client';
 import { analyses, areas, channels, estimateRollups, fits, modeEstimates, modeShapes, modeTracks, ROLLUP_SPANS, scanWindows, sites } from '../schema';
 
@@ -137,64 +137,78 @@ export async function trackEstimateBuckets(
   db: DbOrTx,
   params: { trackId: number; from: Date; to: Date; bucketSeconds: number; naturalOnly?: boolean },
 ): Promise<BucketRow[]> {
+  const byTrack = await tracksEstimateBuckets(db, {
+    ranges: [{ trackId: params.trackId, from: params.from, to: params.to }],
+    bucketSeconds: params.bucketSeconds,
+    naturalOnly: params.naturalOnly,
+  });
+  return byTrack.get(params.trackId) ?? [];
+}
+
+/** trackEstimateBuckets for several tracks, each over its own period, in one statement (Watch). */
+export async function tracksEstimateBuckets(
+  db: DbOrTx,
+  params: { ranges: { trackId: number; from: Date; to: Date }[]; bucketSeconds: number; naturalOnly?: boolean },
+): Promise<Map<number, BucketRow[]>> {
   const b = params.bucketSeconds;
   const spans = ROLLUP_SPANS_DESC.filter((s) => b % s === 0);
-  const plan = planRollupCover(params.from.getTime(), params.to.getTime(), spans);
   const parts: SQL[] = [];
-  const raw = rawEdgeCondition(plan);
-  if (raw) {
-    const natural = sql`not ${modeEstimates.forced}`;
-    parts.push(sql`
-      select floor(extract(epoch from ${modeEstimates.at}) / ${b}) * ${b} as bucket,
-             count(*) as n, count(*) filter (where ${natural}) as nn,
-             sum(${modeEstimates.frequencyHz}) as fs, sum(${modeEstimates.frequencyHz}) filter (where ${natural}) as nfs,
-             min(${modeEstimates.dampingPercent}) filter (where ${natural}) as dmin, max(${modeEstimates.dampingPercent}) filter (where ${natural}) as dmax,
-             sum(${modeEstimates.dampingPercent}) filter (where ${natural}) as ds,
-             sum(${modeEstimates.dampingLo}) filter (where ${natural}) as los, count(${modeEstimates.dampingLo}) filter (where ${natural}) as lon,
-             sum(${modeEstimates.dampingHi}) filter (where ${natural}) as his, count(${modeEstimates.dampingHi}) filter (where ${natural}) as hin
-        from ${modeEstimates}
-       where ${modeEstimates.trackId} = ${params.trackId} and ${raw}
-       group by 1`);
+  const natural = sql`not ${modeEstimates.forced}`;
+  const r = estimateRollups;
+  for (const range of params.ranges) {
+    const plan = planRollupCover(range.from.getTime(), range.to.getTime(), spans);
+    const raw = rawEdgeCondition(plan);
+    if (raw) {
+      parts.push(sql`
+        select ${modeEstimates.trackId} as track, floor(extract(epoch from ${modeEstimates.at}) / ${b}) * ${b} as bucket,
+               count(*) as n, count(*) filter (where ${natural}) as nn,
+               sum(${modeEstimates.frequencyHz}) as fs, sum(${modeEstimates.frequencyHz}) filter (where ${natural}) as nfs,
+               min(${modeEstimates.dampingPercent}) filter (where ${natural}) as dmin, max(${modeEstimates.dampingPercent}) filter (where ${natural}) as dmax,
+               sum(${modeEstimates.dampingPercent}) filter (where ${natural}) as ds,
+               sum(${modeEstimates.dampingLo}) filter (where ${natural}) as los, count(${modeEstimates.dampingLo}) filter (where ${natural}) as lon,
+               sum(${modeEstimates.dampingHi}) filter (where ${natural}) as his, count(${modeEstimates.dampingHi}) filter (where ${natural}) as hin
+          from ${modeEstimates}
+         where ${modeEstimates.trackId} = ${range.trackId} and ${raw}
+         group by 1, 2`);
+    }
+    const roll = rollupCondition(plan);
+    if (roll) {
+      parts.push(sql`
+        select ${r.trackId} as track, floor(extract(epoch from ${r.start}) / ${b}) * ${b} as bucket,
+               sum(${r.count}) as n, sum(${r.naturalCount}) as nn, sum(${r.frequencySum}) as fs, sum(${r.naturalFrequencySum}) as nfs,
+               min(${r.dampingMin}) as dmin, max(${r.dampingMax}) as dmax, sum(${r.dampingSum}) as ds,
+               sum(${r.dampingLoSum}) as los, sum(${r.dampingLoCount}) as lon, sum(${r.dampingHiSum}) as his, sum(${r.dampingHiCount}) as hin
+          from ${r}
+         where ${r.trackId} = ${range.trackId} and ${roll}
+         group by 1, 2`);
+    }
   }
-  const roll = rollupCondition(plan);
-  if (roll) {
-    const r = estimateRollups;
-    parts.push(sql`
-      select floor(extract(epoch from ${r.start}) / ${b}) * ${b} as bucket,
-             sum(${r.count}) as n, sum(${r.naturalCount}) as nn, sum(${r.frequencySum}) as fs, sum(${r.naturalFrequencySum}) as nfs,
-             min(${r.dampingMin}) as dmin, max(${r.dampingMax}) as dmax, sum(${r.dampingSum}) as ds,
-             sum(${r.dampingLoSum}) as los, sum(${r.dampingLoCount}) as lon, sum(${r.dampingHiSum}) as his, sum(${r.dampingHiCount}) as hin
-        from ${r}
-       where ${r.trackId} = ${params.trackId} and ${roll}
-       group by 1`);
-  }
-  if (parts.length === 0) return [];
+  const out = new Map<number, BucketRow[]>(params.ranges.map((x) => [x.trackId, []]));
+  if (parts.length === 0) return out;
   const res = await db.execute<Record<string, number | null>>(sql`
-    select bucket::float8 as bucket, sum(n)::float8 as n, sum(nn)::float8 as nn, sum(fs)::float8 as fs, sum(nfs)::float8 as nfs,
+    select track, bucket::float8 as bucket, sum(n)::float8 as n, sum(nn)::float8 as nn, sum(fs)::float8 as fs, sum(nfs)::float8 as nfs,
            min(dmin)::float8 as dmin, max(dmax)::float8 as dmax, sum(ds)::float8 as ds,
            sum(los)::float8 as los, sum(lon)::float8 as lon, sum(his)::float8 as his, sum(hin)::float8 as hin
       from (${sql.join(parts, sql` union all `)}) p
-     group by bucket
-     order by bucket`);
-  const out: BucketRow[] = [];
+     group by track, bucket
+     order by track, bucket`);
   const num = (v: unknown) => (v === null || v === undefined ? 0 : Number(v));
-  for (const r of res.rows) {
-    const n = num(r.n);
-    const nn = num(r.nn);
+  for (const row of res.rows) {
+    const n = num(row.n);
+    const nn = num(row.nn);
     const count = params.naturalOnly ? nn : n;
     if (count === 0) continue; // only forced estimates, and those are left out
-    const ds = num(r.ds);
-    const lon = num(r.lon);
-    const hin = num(r.hin);
-    out.push({
-      start: new Date(num(r.bucket) * 1000),
+    const lon = num(row.lon);
+    const hin = num(row.hin);
+    out.get(Number(row.track))?.push({
+      start: new Date(num(row.bucket) * 1000),
       count,
-      dampingMin: nn > 0 ? Number(r.dmin) : null,
-      dampingMean: nn > 0 ? ds / nn : null,
-      dampingMax: nn > 0 ? Number(r.dmax) : null,
-      dampingLoMean: lon > 0 ? num(r.los) / lon : null,
-      dampingHiMean: hin > 0 ? num(r.his) / hin : null,
-      frequencyMean: params.naturalOnly ? num(r.nfs) / nn : num(r.fs) / n,
+      dampingMin: nn > 0 ? Number(row.dmin) : null,
+      dampingMean: nn > 0 ? num(row.ds) / nn : null,
+      dampingMax: nn > 0 ? Number(row.dmax) : null,
+      dampingLoMean: lon > 0 ? num(row.los) / lon : null,
+      dampingHiMean: hin > 0 ? num(row.his) / hin : null,
+      frequencyMean: params.naturalOnly ? num(row.nfs) / nn : num(row.fs) / n,
       forcedCount: params.naturalOnly ? 0 : n - nn,
     });
   }
@@ -260,30 +274,34 @@ export interface LatestWithStep {
 }
 
 /**
- * The newest estimate of each track, with the step of its scan (Watch's staleness): one index probe
- * per track (mode_estimates_track_at_idx read backwards), not a pass over every estimate.
+ * The newest estimate of each track, with the step of its scan (Watch's staleness): one statement,
+ * one backward probe of mode_estimates_track_at_id_idx per track (LATERAL … LIMIT 1), not a pass
+ * over every estimate.
  */
 export async function latestByTrack(db: DbOrTx, params: { trackIds: number[] }): Promise<Map<number, LatestWithStep>> {
   const out = new Map<number, LatestWithStep>();
-  const rows = await Promise.all(
-    params.trackIds.map(async (trackId) => {
-      const [r] = await db
-        .select({ estimate: modeEstimates, settings: analyses.settings })
-        .from(modeEstimates)
-        .leftJoin(scanWindows, eq(scanWindows.id, modeEstimates.windowId))
-        .leftJoin(analyses, eq(analyses.id, scanWindows.analysisId))
-        .where(eq(modeEstimates.trackId, trackId))
-        .orderBy(desc(modeEstimates.at), desc(modeEstimates.id))
-        .limit(1);
-      return r;
-    }),
+  if (params.trackIds.length === 0) return out;
+  const cols = Object.entries(getTableColumns(modeEstimates));
+  const list = sql.join(
+    cols.map(([key, col]) => sql`e.${sql.identifier(col.name)} as ${sql.identifier(key)}`),
+    sql`, `,
   );
-  for (const r of rows) {
-    if (!r) continue;
-    const step = (r.settings as { stepSeconds?: unknown } | null)?.stepSeconds;
-    out.set(r.estimate.trackId!, {
-      estimate: r.estimate,
-      stepSeconds: r.estimate.windowId === null ? null : typeof step === 'number' ? step : 60,
+  const ids = sql.join(params.trackIds.map((id) => sql`${id}::int`), sql`, `);
+  const res = await db.execute<Record<string, unknown>>(sql`
+    select ${list}, a.settings as "_settings"
+      from unnest(array[${ids}]) as t(id)
+      cross join lateral (
+        select * from ${modeEstimates} x where x.track_id = t.id order by x.at desc, x.id desc limit 1
+      ) e
+      left join ${scanWindows} w on w.id = e.window_id
+      left join ${analyses} a on a.id = w.analysis_id`);
+  for (const row of res.rows) {
+    const estimate = Object.fromEntries(cols.map(([key, col]) => [key, row[key] === null || row[key] === undefined ? null : col.mapFromDriverValue(row[key])])) as EstimateRow;
+    const settings = row._settings as { stepSeconds?: unknown } | null;
+    const step = settings?.stepSeconds;
+    out.set(estimate.trackId!, {
+      estimate,
+      stepSeconds: estimate.windowId === null ? null : typeof step === 'number' ? step : 60,
     });
   }
   return out;

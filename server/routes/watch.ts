@@ -1,6 +1,6 @@
 // Watch: every mode track with its newest estimate, a 24-hour sparkline, open alerts and staleness.
 import { listAlerts, listTracks } from '../../db/queries/alerts';
-import { latestByTrack, trackEstimateBuckets } from '../../db/queries/estimates';
+import { latestByTrack, tracksEstimateBuckets } from '../../db/queries/estimates';
 import { corridorChannelNames } from '../../db/queries/scans';
 import { ADVISORY_CAUTION } from '../../shared/api/alerts';
 import { SPARKLINE_BUCKET_MINUTES, SPARKLINE_HOURS, type WatchTrack } from '../../shared/api/watch';
@@ -23,58 +23,53 @@ export function watchRoutes(): RouteDef[] {
       ]);
       const corridors = new Map(corridorRows.map((c) => [c.id, c]));
       const latest = await latestByTrack(deps.db, { trackIds: tracks.map((t) => t.id) });
-      // the tracks' sparklines in parallel (each a few hundred rollup rows: see trackEstimateBuckets)
-      const out: WatchTrack[] = await Promise.all(
-        tracks.map(async (t): Promise<WatchTrack> => {
-          const l = latest.get(t.id);
-          const staleAfter = staleAfterSeconds(l?.stepSeconds ?? null);
-          let sparkline: WatchTrack['sparkline'] = [];
-          if (l) {
-            const to = l.estimate.at;
-            const from = new Date(to.getTime() - SPARKLINE_HOURS * 3600 * 1000);
-            const buckets = await trackEstimateBuckets(deps.db, {
-              trackId: t.id,
-              from,
-              to,
-              bucketSeconds: SPARKLINE_BUCKET_MINUTES * 60,
-              naturalOnly: true,
-            });
-            sparkline = buckets
-              .filter((b) => b.dampingMin !== null)
-              .map((b) => ({ t: iso(b.start), min: b.dampingMin!, mean: b.dampingMean!, max: b.dampingMax! }));
-          }
-          const ageSeconds = l ? Math.max(0, (now.getTime() - l.estimate.at.getTime()) / 1000) : null;
-          const corridor = t.corridorId !== null ? corridors.get(t.corridorId) : undefined;
-          return {
-            code: t.code,
-            name: t.name,
-            description: t.description,
-            minHz: t.minHz,
-            maxHz: t.maxHz,
-            poorBelow: t.poorBelow,
-            lowBelow: t.lowBelow,
-            corridor: corridor ? { code: corridor.code, name: corridor.name } : null,
-            latest: l
-              ? {
-                  estimateId: l.estimate.id,
-                  at: iso(l.estimate.at),
-                  ageSeconds: ageSeconds!,
-                  frequencyHz: l.estimate.frequencyHz,
-                  dampingPercent: l.estimate.dampingPercent,
-                  dampingLo: l.estimate.dampingLo,
-                  dampingHi: l.estimate.dampingHi,
-                  forced: l.estimate.forced,
-                  band: estimateBand(l.estimate, t),
-                  method: l.estimate.method,
-                }
-              : null,
-            stale: ageSeconds === null || ageSeconds > staleAfter,
-            staleAfterSeconds: staleAfter,
-            sparkline,
-            openAlerts: open.filter((a) => a.alert.trackId === t.id).map((a) => toAlertSummary(a, now)),
-          };
-        }),
-      );
+      // every track's sparkline in one statement (a few hundred rollup rows: see tracksEstimateBuckets)
+      const spark = await tracksEstimateBuckets(deps.db, {
+        ranges: [...latest.values()].map((l) => ({
+          trackId: l.estimate.trackId!,
+          from: new Date(l.estimate.at.getTime() - SPARKLINE_HOURS * 3600 * 1000),
+          to: l.estimate.at,
+        })),
+        bucketSeconds: SPARKLINE_BUCKET_MINUTES * 60,
+        naturalOnly: true,
+      });
+      const out: WatchTrack[] = tracks.map((t): WatchTrack => {
+        const l = latest.get(t.id);
+        const staleAfter = staleAfterSeconds(l?.stepSeconds ?? null);
+        const sparkline: WatchTrack['sparkline'] = (spark.get(t.id) ?? [])
+          .filter((b) => b.dampingMin !== null)
+          .map((b) => ({ t: iso(b.start), min: b.dampingMin!, mean: b.dampingMean!, max: b.dampingMax! }));
+        const ageSeconds = l ? Math.max(0, (now.getTime() - l.estimate.at.getTime()) / 1000) : null;
+        const corridor = t.corridorId !== null ? corridors.get(t.corridorId) : undefined;
+        return {
+          code: t.code,
+          name: t.name,
+          description: t.description,
+          minHz: t.minHz,
+          maxHz: t.maxHz,
+          poorBelow: t.poorBelow,
+          lowBelow: t.lowBelow,
+          corridor: corridor ? { code: corridor.code, name: corridor.name } : null,
+          latest: l
+            ? {
+                estimateId: l.estimate.id,
+                at: iso(l.estimate.at),
+                ageSeconds: ageSeconds!,
+                frequencyHz: l.estimate.frequencyHz,
+                dampingPercent: l.estimate.dampingPercent,
+                dampingLo: l.estimate.dampingLo,
+                dampingHi: l.estimate.dampingHi,
+                forced: l.estimate.forced,
+                band: estimateBand(l.estimate, t),
+                method: l.estimate.method,
+              }
+            : null,
+          stale: ageSeconds === null || ageSeconds > staleAfter,
+          staleAfterSeconds: staleAfter,
+          sparkline,
+          openAlerts: open.filter((a) => a.alert.trackId === t.id).map((a) => toAlertSummary(a, now)),
+        };
+      });
       return { generatedAt: iso(now), tracks: out, caution: ADVISORY_CAUTION };
     }),
   ];
