@@ -4,10 +4,17 @@
     /usr/bin/python3 scripts/bench/scan_speed_ref.py DIR
 
 DIR holds meta.json and one float64 file per channel (written by scripts/bench/scan-speed.ts).
-Same method and settings as modal/ambient-engine.ts with the default options, written the plain
-numpy way: the whole record decimated at once, then every window recomputed from its samples
-(lag products by vectorised products and group sums, spectra by batched FFTs, AR polynomials by
-scipy.linalg.solve_toeplitz, poles by numpy.roots). Writes DIR/numpy.json with the time and, per
+Same method and settings as modal/ambient-engine.ts with the default options (method
+'yule-walker'), written the plain numpy way: the whole record decimated at once, then every window
+recomputed from its samples (lag products by vectorised products and group sums, spectra by batched
+FFTs, AR polynomials by scipy.linalg.solve_toeplitz, poles by numpy.roots). Per window: lines
+searched and removed, an AR(30) fit of the autocorrelation pooled over all channels proposes
+candidates; each candidate is re-estimated from its modal filter's output (the channel combination
+concentrating its variance at the candidate's frequency: scipy.linalg.eigh of the cross-spectral
+matrix against the correlation matrix) by a modified Yule-Walker fit (AR order 3, equations from
+lag 3, numpy.linalg.lstsq), jackknife replicates refit on that output; estimates closer than a
+half-power half-width are merged; shapes from least-squares fits (numpy.linalg.pinv) of the
+channels' cross-correlations with the output on the poles of all reported modes. Writes DIR/numpy.json with the time and, per
 window, the strongest natural mode of the north–south band — the benchmark compares them with
 Keel's. The benchmark day has no missing samples, so gap filling is not exercised here.
 """
@@ -25,11 +32,15 @@ import scipy.stats as st
 # Default options (modal/ambient-options.ts)
 WINDOW_S, STEP_S, BAND = 1200.0, 60.0, (0.1, 2.0)
 AR_ORDER, GROUPS, CONF = 30, 10, 0.9
-MAX_DAMP, MIN_STRENGTH = 20.0, 3.0
+MAX_DAMP, MIN_STRENGTH = 20.0, 4.8  # minStrength in dB
 FORCED_MAX_DAMP, MIN_COH = 1.5, 0.5
 SEGMENT_S = 60.0
 REFERENCE = "tarrow-central.angle"
+# Constants of modal/ambient-engine.ts
 FORCED_SCREEN, MAX_LINES = 12.0, 3
+MYW_ORDER, MYW_FIRST_LAG, MYW_MIN_EQ, MYW_MAX_EQ, MYW_DECAY_SPAN = 3, 3, 9, 30, 0.5
+FILTER_LOADING, SPEC_FLOOR_STRIDE = 1e-3, 6
+RESIDUE_S, RESIDUE_OVERLAP = 6.0, 2
 
 
 def decimator(rate, q, pass_hz):
@@ -91,6 +102,134 @@ def pole_mode(z, fs):
     return s.imag / (2 * np.pi), 100 * (-s.real / abs(s))
 
 
+def round_half_up(x):
+    """JavaScript's Math.round (Python's round() rounds halves to even)."""
+    return math.floor(x + 0.5)
+
+
+def peak_db(peak, floor):
+    return max(-100.0, 10 * math.log10(peak / floor)) if peak > 0 and floor > 0 else -100.0
+
+
+def modified_yule_walker(r, order, first, eq):
+    """AR part from the extended Yule-Walker equations at lags first … first+eq−1, least squares."""
+    k = np.arange(first, first + eq)
+    A = r[np.abs(k[:, None] - np.arange(1, order + 1)[None, :])]
+    x = np.linalg.lstsq(A, -r[k], rcond=np.finfo(float).eps * eq)[0]
+    return np.concatenate([[1.0], x])
+
+
+def group_lag_sums(y, L, G):
+    """(groups, L): Σ y[t]·y[t−k] over t in each group, t − k ≥ 0 (within the window)."""
+    W = len(y)
+    out = np.empty((W // G, L))
+    for k in range(L):
+        prod = np.zeros(W)
+        prod[k:] = y[k:] * y[: W - k]
+        out[:, k] = prod.reshape(-1, G).sum(axis=1)
+    return out
+
+
+def modal_filter(Fa, b1, f1, R0, xa, sda, lines, act, fs, W, G):
+    """Stage 2 for one candidate: the channel combination y = Σ w·x/σ with the largest share of its
+    variance at bin b1 (leading generalised eigenvector of Re S(f) against the correlation matrix),
+    then a modified Yule-Walker fit of y's autocovariance. "floor" when the bin does not stand
+    MIN_STRENGTH above the floor of y's spectrum, None when no filter or no pole is found."""
+    n = len(act)
+    V = Fa[:, :, b1]
+    A = V.real @ V.real.T + V.imag @ V.imag.T
+    if not np.trace(A) > 0:
+        return None
+    try:
+        _, U = sl.eigh(A, R0 + FILTER_LOADING * np.eye(n), subset_by_index=[n - 1, n - 1])
+    except (np.linalg.LinAlgError, ValueError):
+        return None
+    w = U[:, 0]
+    spec = np.sum(np.abs(np.einsum("i,isj->sj", w, Fa)) ** 2, axis=0)
+    spec_floor = np.median(spec[::SPEC_FLOOR_STRIDE])
+    strength_at = lambda j: peak_db(spec[j], spec_floor)
+    if strength_at(b1) < MIN_STRENGTH:
+        return "floor"
+    g = w / sda
+    y = g @ xa
+    lag = np.arange(MYW_FIRST_LAG + MYW_MAX_EQ)
+    line_acf = np.zeros(len(lag))
+    for f, amp in lines:
+        ay = np.sum(g * amp[act])
+        line_acf += 0.5 * abs(ay) ** 2 * np.cos(2 * np.pi * f / fs * lag)
+    groups = group_lag_sums(y, MYW_FIRST_LAG + MYW_MIN_EQ, G)
+
+    def acf(s, count):
+        k = np.arange(len(s))
+        return s / count - line_acf[: len(s)] * (count - k) / count
+
+    def fit(eq):
+        try:
+            a = modified_yule_walker(acf(groups.sum(axis=0), W), MYW_ORDER, MYW_FIRST_LAG, eq)
+        except np.linalg.LinAlgError:
+            return None
+        if not np.all(np.isfinite(a)):
+            return None
+        best, zb = np.inf, None
+        for r in np.roots(a):
+            if not r.imag > 0:
+                continue
+            fr, dp = pole_mode(r, fs)
+            if 0 < dp < MAX_DAMP and abs(fr - f1) < best:
+                best, zb = abs(fr - f1), r
+        return zb
+
+    z0 = fit(MYW_MIN_EQ)
+    if z0 is None:
+        return None
+    decay = fs / max(1e-9, -fs * math.log(abs(z0)))
+    eq = min(MYW_MAX_EQ, max(MYW_MIN_EQ, round_half_up(MYW_DECAY_SPAN * decay)))
+    if eq != MYW_MIN_EQ:
+        groups = group_lag_sums(y, MYW_FIRST_LAG + eq, G)
+        z = fit(eq)
+        if z is None:
+            return None
+    else:
+        z = z0
+    full = groups.sum(axis=0)
+    rep_a = []
+    for gs in groups:
+        try:
+            ra = modified_yule_walker(acf(full - gs, W - G), MYW_ORDER, MYW_FIRST_LAG, eq)
+        except np.linalg.LinAlgError:
+            ra = None
+        rep_a.append(ra)
+    reps = [lambda zz, ra=ra: refine(ra, zz) if ra is not None else None for ra in rep_a]
+    return {"z": z, "reps": reps, "w": w, "strength_at": strength_at, "y": y}
+
+
+def residue_shape(y, basis, xa, sda, unit_groups, fs, W):
+    """Channel responses from the cross-correlations with y at lags 1 … RESIDUE_S s, fitted on the
+    exponentials of `basis` (the mode's own pole first): its coefficient per channel."""
+    poles = [z for i, z in enumerate(basis) if i == 0 or 0.05 < abs(z) < 1.2]
+    nc = sum(2 if z.imag > 0 else 1 for z in poles)
+    Lx = max(round_half_up(RESIDUE_S * fs), 2 * nc)
+    if nc >= Lx:
+        return None
+    tau = np.arange(1, Lx + 1)
+    cols = []
+    for z in poles:
+        zt = z ** tau
+        cols.append(zt.real)
+        if z.imag > 0:
+            cols.append(zt.imag)
+    H = np.linalg.pinv(np.array(cols).T, rcond=1e-10)[:2]  # (2, Lx)
+    # Σ_τ h_τ·Σ_t x[t+τ]·y[t] = Σ_t x[t]·u[t], u = y filtered by h (delay ≥ 1)
+    u = np.stack([np.convolve(y, np.concatenate([[0.0], h]))[:W] for h in H])
+    ab = xa @ u.T / W
+    resp = ab[:, 0] - 1j * ab[:, 1]
+    # magnitudes relative to the largest of each unit group, angles to the most participating channel
+    mag = np.abs(resp)
+    gmax = {gname: mag[unit_groups == gname].max() for gname in set(unit_groups)}
+    ref = np.argmax(mag / sda)
+    return mag / np.array([gmax[gname] for gname in unit_groups]), np.angle(resp / resp[ref], deg=True)
+
+
 def principal(v):
     """v: (M, n) complex segment vectors. Unit principal eigenvector and trace of S = mean v vᴴ."""
     S = v.T @ v.conj() / len(v)
@@ -140,6 +279,7 @@ def main():
     ref_idx = names.index(REFERENCE) if REFERENCE in names else None
     ref_unw = np.unwrap(raw[ref_idx], period=360) if ref_idx is not None else None
     chans = [k for k in range(len(names)) if k != ref_idx]
+    unit_group = np.array([names[k].rsplit(".", 1)[-1] if "." in names[k] else "" for k in chans])
     quality = {names[k]: block_quality(raw[k], B * q, rate) for k in range(len(names))}
     X = []
     for k in chans:
@@ -230,28 +370,52 @@ def main():
 
         f1, r1 = pooled(np.ones(C))
         a1 = levinson(f1, p)
-        modes = []
+        roots1 = np.roots(a1)
+        strength_at = lambda b: peak_db(trace[b], floor)
+        bin_of = lambda f: int(min(khi, max(klo, round_half_up(f * nfft / fs)))) - klo
+        act = np.flatnonzero(active)
+        xa = xc[act]
+        Fa = F[act]  # (n, segments, band bins), channels / their sd
+        R0 = None
         taken = []
-        for z1 in np.roots(a1):
+        cands = []
+        for z1 in roots1:
             if z1.imag <= 0:
                 continue
             fr1, d1 = pole_mode(z1, fs)
-            if not (BAND[0] <= fr1 <= BAND[1]) or not 0 < d1 < MAX_DAMP:
+            if BAND[0] <= fr1 <= BAND[1] and 0 < d1 < MAX_DAMP:
+                cands.append((z1, fr1, d1))
+        cands.sort(key=lambda c: -strength_at(bin_of(c[1])))  # stable, strongest first
+        natural = []
+        for z1, fr1, d1 in cands:
+            b1 = bin_of(fr1)
+            # another pole of a peak already estimated
+            if any(abs(k["f"] - fr1) < -k["sigma"] / (2 * np.pi) for k in natural):
                 continue
-            b1 = int(min(khi, max(klo, round(fr1 * nfft / fs)))) - klo
-            if floor <= 0 or trace[b1] / floor < MIN_STRENGTH:
+            if R0 is None:
+                R0 = (xa @ xa.T) / (W * np.outer(sd[act], sd[act]))
+                np.fill_diagonal(R0, 1.0)
+            filt = modal_filter(Fa, b1, fr1, R0, xa, sd[act], lines, act, fs, W, G)
+            if filt == "floor":
                 continue
-            wts = np.mean(np.abs(F[:, :, b1]) ** 2, axis=1)
-            fw, rw = pooled(wts)
-            a2 = levinson(fw, p)
-            z = refine(a2, z1)
-            a_use, r_use = a2, rw
-            if z is None:
-                roots2 = np.roots(a2)
-                dist = np.abs(roots2 - z1)
-                z = roots2[np.argmin(dist)] if dist.min() < 0.05 else None
-            if z is None:
-                z, a_use, r_use = z1, a1, r1
+            z, rep_fn = None, None
+            if filt is not None:
+                z, rep_fn = filt["z"], filt["reps"]
+            else:
+                if strength_at(b1) < MIN_STRENGTH:
+                    continue
+                wts = np.mean(np.abs(F[:, :, b1]) ** 2, axis=1)
+                fw, rw = pooled(wts)
+                a2 = levinson(fw, p)
+                z = refine(a2, z1)
+                r_use = rw
+                if z is None:
+                    roots2 = np.roots(a2)
+                    dist = np.abs(roots2 - z1)
+                    z = roots2[np.argmin(dist)] if dist.min() < 0.05 else None
+                if z is None:
+                    z, r_use = z1, r1
+                rep_fn = [lambda zz, r=r_use[g]: refine(levinson(r, p), zz) for g in range(GROUPS)]
             if any(abs(t - z) < 1e-4 for t in taken):
                 continue
             fr, dp = pole_mode(z, fs)
@@ -261,8 +425,8 @@ def main():
                 continue
             taken.append(z)
             fs_rep, ds_rep = [], []
-            for g in range(GROUPS):
-                zz = refine(levinson(r_use[g], p), z)
+            for rf in rep_fn:
+                zz = rf(z)
                 if zz is not None:
                     a, b_ = pole_mode(zz, fs)
                     fs_rep.append(a)
@@ -273,19 +437,51 @@ def main():
                 dci = (dp - tq * jk(ds_rep), dp + tq * jk(ds_rep))
             else:
                 fci, dci = (BAND[0], BAND[1]), (0.0, MAX_DAMP)
-            b = int(min(khi, max(klo, round(fr * nfft / fs)))) - klo
-            strength = trace[b] / floor
+            b = bin_of(fr)
+            strength = filt["strength_at"](b) if filt is not None else strength_at(b)
             if strength < MIN_STRENGTH:
                 continue
-            v = F[active][:, :, b].T
-            u, tr, lam1 = principal(v)
+            v = Fa[:, :, b].T  # (segments, n)
+            if filt is not None:
+                # cross-spectrum of each channel with the filter output
+                u = v.T @ (v @ filt["w"]).conj()
+                u = u / (np.linalg.norm(u) or 1)
+            else:
+                u, tr, lam1 = principal(v)
             forced = False
             if dp < FORCED_MAX_DAMP:
                 forced = coherence(v @ u.conj(), seg_times, fr, T) >= MIN_COH
-            modes.append({"f": fr, "d": dp, "fci": fci, "dci": dci, "forced": forced, "strength": strength})
+            sigma = fs * math.log(abs(z))
+            natural.append({"f": fr, "d": dp, "sigma": sigma, "z": z, "filt": filt, "fci": fci, "dci": dci, "forced": forced, "strength": strength})
+        # split peaks: estimates closer than the larger half-power half-width are one mode
+        natural.sort(key=lambda k: -k["strength"])
+        hw = lambda k: -k["sigma"] / (2 * np.pi)
+        modes = []
+        for cand in natural:
+            if not any(abs(k["f"] - cand["f"]) < max(hw(k), hw(cand)) for k in modes):
+                modes.append(cand)
+        # residue shapes on the poles of every reported mode and the stage-1 poles standing for none
+        others = []
+        for pz in roots1:
+            if pz.imag < 0:
+                continue
+            if pz.imag == 0:
+                others.append(pz)
+                continue
+            pf, _ = pole_mode(pz, fs)
+            ps = fs * math.log(abs(pz))
+            if not any(abs(k["f"] - pf) < RESIDUE_OVERLAP * (hw(k) - ps / (2 * np.pi)) for k in modes):
+                others.append(pz)
+        own = [k["z"] for k in modes]
+        for i, k in enumerate(modes):
+            if k["filt"] is None:
+                continue
+            sh = residue_shape(k["filt"]["y"], [own[i]] + own[:i] + own[i + 1 :] + others, xa, sd[act], unit_group[act], fs, W)
+            if sh is not None:
+                k["shape"] = sh
         for f, amp in lines:
-            b = int(min(khi, max(klo, round(f * nfft / fs)))) - klo
-            modes.append({"f": f, "d": 0.0, "fci": (f - 0.5 / T, f + 0.5 / T), "dci": (0, 0), "forced": True, "strength": trace[b] / floor})
+            b = bin_of(f)
+            modes.append({"f": f, "d": 0.0, "fci": (f - 0.5 / T, f + 0.5 / T), "dci": (0, 0), "forced": True, "strength": strength_at(b)})
         qual = {nm: int(quality[nm]["outliers"][ws // B : we // B].sum()) for nm in names}
         ns = sorted([md for md in modes if not md["forced"] and 0.2 <= md["f"] <= 0.45], key=lambda md: -md["strength"])
         best = ns[0] if ns else None
