@@ -11,7 +11,7 @@ import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { writeCsv } from '../../modal/formats/csv';
 import { buildTarrowModel, simulateAmbient } from '../../modal/simulator';
-import { openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
 import { startStack, type Stack } from '../helpers/stack';
 
 const PASSWORD = 'tarrow-demo-2026';
@@ -77,25 +77,6 @@ async function signIn(page: Page): Promise<void> {
   await page.waitForTimeout(500);
 }
 
-/** The app scrolls inside its own frame: grow the viewport to the content for a whole-screen shot. */
-async function shotAll(b: BrowserSession, name: string): Promise<void> {
-  const page = b.page;
-  const extra = await page.evaluate(() => {
-    let most = 0;
-    for (const el of Array.from(document.querySelectorAll('div'))) {
-      const s = getComputedStyle(el);
-      if ((s.overflowY === 'auto' || s.overflowY === 'scroll') && el.scrollHeight > el.clientHeight) most = Math.max(most, el.scrollHeight - el.clientHeight);
-    }
-    return most;
-  });
-  const size = page.viewportSize()!;
-  if (extra > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + extra, 12_000) });
-    await page.waitForTimeout(400);
-  }
-  await b.shot(name);
-  if (extra > 0) await page.setViewportSize(size);
-}
 
 async function pickFile(page: Page, file: string): Promise<void> {
   const chooser = page.waitForEvent('filechooser');
@@ -126,7 +107,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         if (viewport === 'phone') {
           // The first run sees the fresh database.
           await page.getByText('No recordings yet').waitFor();
-          await shotAll(b, 'recordings-empty');
+          await shotWhole(b, 'recordings-empty');
         } else {
           await page.getByTestId('recordings-list').waitFor();
         }
@@ -146,7 +127,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const box = page.getByTestId('upload-refusal');
         await box.getByText('The file was refused').waitFor();
         expect(await box.getByText(refusal.error.message, { exact: true }).count()).toBe(1);
-        await shotAll(b, 'upload-refused');
+        await shotWhole(b, 'upload-refused');
         // A refused upload is not an app error: the browser's own line about the 400 is expected.
         b.errors.splice(0, b.errors.length, ...b.errors.filter((e) => !/status of 400/.test(e)));
         expectNoErrors(b, 'the refused upload');
@@ -170,7 +151,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         // Nothing chosen yet: the step says so instead of sending.
         await page.getByRole('button', { name: 'Upload with this mapping' }).click();
         await page.getByText('Choose a channel, or leave the column out').waitFor();
-        await shotAll(b, 'upload-mapping');
+        await shotWhole(b, 'upload-mapping');
         await select.selectOption('greyscar.angle');
         b.errors.splice(0, b.errors.length, ...b.errors.filter((e) => !/status of 400/.test(e)));
 
@@ -198,7 +179,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         expect(seen.every((v, i) => i === 0 || v >= seen[i - 1]), `progress went backwards: ${seen.join(', ')}`).toBe(true);
         expect(await progress.getAttribute('aria-valuetext')).toBe('100 %: Ready');
         await page.getByText(`${good.name} is ready · 5 channels · 25 min 0 s · 30 frames/s`).waitFor();
-        await shotAll(b, 'upload-done');
+        await shotWhole(b, 'upload-done');
         expectNoErrors(b, 'the upload');
 
         // The list shows it, ready.
@@ -223,7 +204,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         expect(await scanForm.getByLabel('Window (s)').inputValue()).toBe('1200');
         expect(await scanForm.getByLabel('Step (s)').inputValue()).toBe('60');
         await scanForm.getByText('default 1200 s (20 min)').waitFor();
-        await shotAll(b, 'recording');
+        await shotWhole(b, 'recording');
         expectNoErrors(b, 'the recording page');
 
         // 4. An ambient scan with a longer step (fewer windows), checked by the form first.
@@ -277,13 +258,13 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
           expect(damping).toBeGreaterThan(1);
           expect(damping).toBeLessThan(7);
         }
-        await shotAll(b, 'scan');
+        await shotWhole(b, 'scan');
         expectNoErrors(b, 'the scan');
 
         // The Recordings screen lists the scan among the latest analyses.
         await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).click();
         await page.getByRole('link', { name: new RegExp(`^Open ambient scan ${scanId}`) }).waitFor();
-        await shotAll(b, 'recordings');
+        await shotWhole(b, 'recordings');
         expectNoErrors(b, 'Recordings');
       } finally {
         await b.close();

@@ -12,7 +12,7 @@ import { writeCsv } from '../../modal/formats/csv';
 import { buildTarrowModel, simulateRingdown, type RingdownSimulation } from '../../modal/simulator';
 import { FIT_CSV_COLUMNS } from '../../shared/api/fits';
 import { LIGHT_CHANNELS } from '../../scripts/seed-demo';
-import { openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
 import { startStack, type Stack } from '../helpers/stack';
 
 const PASSWORD = 'tarrow-demo-2026';
@@ -59,25 +59,6 @@ async function signIn(page: Page): Promise<void> {
   await page.waitForTimeout(500);
 }
 
-/** The app scrolls inside its own frame: grow the viewport to the content for a whole-screen shot. */
-async function shotAll(b: BrowserSession, name: string): Promise<void> {
-  const page = b.page;
-  const extra = await page.evaluate(() => {
-    let most = 0;
-    for (const el of Array.from(document.querySelectorAll('div'))) {
-      const s = getComputedStyle(el);
-      if ((s.overflowY === 'auto' || s.overflowY === 'scroll') && el.scrollHeight > el.clientHeight) most = Math.max(most, el.scrollHeight - el.clientHeight);
-    }
-    return most;
-  });
-  const size = page.viewportSize()!;
-  if (extra > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + extra, 12_000) });
-    await page.waitForTimeout(400);
-  }
-  await b.shot(name);
-  if (extra > 0) await page.setViewportSize(size);
-}
 
 function expectNoErrors(b: BrowserSession, where: string): void {
   const server = b.errors.length ? `\nlast server lines:\n${stack.logs.slice(-25).join('\n')}` : '';
@@ -132,7 +113,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const bar = page.getByRole('progressbar', { name: `Upload of ${name}` });
         await expect.poll(async () => bar.getAttribute('aria-valuetext'), { timeout: 60_000 }).toBe('100 %: Ready');
         await page.getByTestId('upload-summary').getByText(`${name} is ready · ${CHANNELS.length} channels · 45.0 s · 30 frames/s`).waitFor();
-        await shotAll(b, 'upload-done');
+        await shotWhole(b, 'upload-done');
         expectNoErrors(b, 'the upload');
 
         // The recording's page: type the 20 s after the event into the fit form.
@@ -147,7 +128,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await form.getByLabel('To (s)').fill(String(eventOffset + 20.1));
         // Units everywhere: the interval's UTC ends beside the fields.
         await form.getByText('20.0 s long', { exact: false }).waitFor();
-        await shotAll(b, 'recording');
+        await shotWhole(b, 'recording');
         expectNoErrors(b, 'the recording page');
         await form.getByRole('button', { name: 'Fit this interval' }).click();
         await page.waitForURL(/\/fits\/\d+$/, { timeout: 20_000 });
@@ -186,12 +167,12 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         // The mode's part moves into the residual.
         expect(await page.getByTestId('ringdown-residual-summary').innerText()).not.toBe(residualBefore);
         await page.getByText(new RegExp(`reconstruction, ${count - 1} of ${count} modes`)).first().waitFor();
-        await shotAll(b, 'ringdown-mode-off');
+        await shotWhole(b, 'ringdown-mode-off');
         // And back on: the fit's own reconstruction again.
         await first.click();
         await expect.poll(() => reconstructionPath(page)).toBe(before);
         await page.getByTestId('mode-shape-polar').waitFor();
-        await shotAll(b, 'ringdown');
+        await shotWhole(b, 'ringdown');
         expectNoErrors(b, 'the ring-down view');
 
         // The CSV export is a link to the server.
@@ -217,7 +198,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         // The selection is on the sample grid (30 frames/s) and inside the recording.
         expect(Math.abs(newFrom * 30 - Math.round(newFrom * 30))).toBeLessThan(0.31);
         expect(newTo).toBeLessThanOrEqual(45);
-        await shotAll(b, 'ringdown-brushed');
+        await shotWhole(b, 'ringdown-brushed');
         await refit.getByRole('button', { name: 'Fit again' }).click();
         await page.waitForURL((u) => /\/fits\/\d+$/.test(u.pathname) && u.pathname !== `/fits/${fitId}`, { timeout: 20_000 });
         const refitId = Number(/\/fits\/(\d+)$/.exec(page.url())![1]);
@@ -227,7 +208,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const span = (newTo - newFrom).toFixed(1);
         await page.getByText(new RegExp(`${span.replace('.', '\\.')} s from `)).first().waitFor();
         await page.getByTestId('modes-table').waitFor();
-        await shotAll(b, 'refit');
+        await shotWhole(b, 'refit');
         expectNoErrors(b, 'the new fit');
 
         // Both fits are listed on the recording's page.

@@ -12,7 +12,7 @@
 // (tests/helpers/scenario.ts).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { transferAtDampingPercent } from '../../modal/simulator';
-import { openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { goToSection, shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
 import { DEMO_PASSWORD, ROLE_EMAIL } from '../helpers/fixtures';
 import { seedAmbientScenario } from '../helpers/scenario';
 import { startStack, type Stack } from '../helpers/stack';
@@ -40,35 +40,7 @@ async function signIn(b: BrowserSession, role: keyof typeof ROLE_EMAIL): Promise
   await page.getByRole('heading', { name: 'Watch', level: 1 }).waitFor({ timeout: 20_000 });
 }
 
-/** Opens a section from the navigation: the tab bar or rail, or the phone's "More" sheet. */
-async function goToSection(b: BrowserSession, name: string): Promise<void> {
-  const { page } = b;
-  const direct = page.getByRole('navigation').getByRole('link', { name, exact: true });
-  if ((await direct.count()) > 0) {
-    await direct.click();
-    return;
-  }
-  await page.getByTestId('nav-more').click();
-  await page.getByTestId('nav-more-sheet').getByRole('link', { name, exact: true }).click();
-}
 
-/** The screens scroll inside the app shell: grow the viewport to the content for a whole-screen picture. */
-async function shotWhole(b: BrowserSession, name: string): Promise<void> {
-  const { page } = b;
-  const size = page.viewportSize()!;
-  const extra = await page.evaluate(() => {
-    let most = 0;
-    for (const el of Array.from(document.querySelectorAll('div'))) {
-      const st = getComputedStyle(el);
-      if ((st.overflowY === 'auto' || st.overflowY === 'scroll') && el.scrollHeight > el.clientHeight) most = Math.max(most, el.scrollHeight - el.clientHeight);
-    }
-    return most;
-  });
-  await page.setViewportSize({ width: size.width, height: Math.min(size.height + extra, 6000) });
-  await page.waitForTimeout(400);
-  await b.shot(name);
-  await page.setViewportSize(size);
-}
 
 const fromLabel = (text: string) => /From\s+(\d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC)/.exec(text)?.[1];
 

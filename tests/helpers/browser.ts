@@ -64,3 +64,35 @@ export async function openBrowser(suite: string, viewport: ViewportName): Promis
     },
   };
 }
+
+/** Opens a section from the navigation: the tab bar or rail, or the phone's "More" sheet. */
+export async function goToSection(b: BrowserSession, name: string): Promise<void> {
+  const { page } = b;
+  const direct = page.getByRole('navigation').getByRole('link', { name, exact: true });
+  if ((await direct.count()) > 0) {
+    await direct.click();
+    return;
+  }
+  await page.getByTestId('nav-more').click();
+  await page.getByTestId('nav-more-sheet').getByRole('link', { name, exact: true }).click();
+}
+
+/** The screens scroll inside the app shell: grow the viewport to the content for a whole-screen picture. */
+export async function shotWhole(b: BrowserSession, name: string): Promise<void> {
+  const page = b.page;
+  const extra = await page.evaluate(() => {
+    let most = 0;
+    for (const el of Array.from(document.querySelectorAll('div'))) {
+      const s = getComputedStyle(el);
+      if ((s.overflowY === 'auto' || s.overflowY === 'scroll') && el.scrollHeight > el.clientHeight) most = Math.max(most, el.scrollHeight - el.clientHeight);
+    }
+    return most;
+  });
+  const size = page.viewportSize()!;
+  if (extra > 0) {
+    await page.setViewportSize({ width: size.width, height: Math.min(size.height + extra, 12_000) });
+    await page.waitForTimeout(400);
+  }
+  await b.shot(name);
+  if (extra > 0) await page.setViewportSize(size);
+}
