@@ -8,6 +8,7 @@ import helmet from 'helmet';
 import { createRateLimits } from './auth/rate-limits';
 import { createSession } from './auth/session';
 import type { Deps } from './deps';
+import { invalidateReadCache } from './events/live';
 import { httpError, NotFoundError, PayloadTooLargeError, ValidationError } from './errors';
 import { allRoutes } from './routes';
 import { mountRoutes, routeTable, type RouteEntry } from './routes/registry';
@@ -48,6 +49,8 @@ export function createApp(deps: Deps): KeelApp {
   const app = express();
   const { config } = deps;
   app.disable('x-powered-by');
+  // API answers are no-store, so an ETag (a hash of every answer body) would never be used.
+  app.set('etag', false);
   if (config.cookieSecure) app.set('trust proxy', 1);
 
   app.use(
@@ -60,9 +63,17 @@ export function createApp(deps: Deps): KeelApp {
 
   const session = createSession(deps);
   const api = express.Router();
-  api.use(express.json({ limit: JSON_BODY_LIMIT }));
-  api.use((_req, res, next) => {
+  const json = express.json({ limit: JSON_BODY_LIMIT });
+  api.use((req, res, next) => (req.method === 'GET' || req.method === 'HEAD' ? next() : json(req, res, next)));
+  api.use((req, res, next) => {
     res.set('Cache-Control', 'no-store');
+    // A change made through this process shows in Watch/Trends at once (server/read-cache.ts);
+    // emptied when the answer is sent, i.e. after the change was committed.
+    if (req.method !== 'GET' && req.method !== 'HEAD') {
+      res.on('finish', () => {
+        if (res.statusCode < 400) invalidateReadCache(deps);
+      });
+    }
     next();
   });
   const routes = allRoutes(session.passport);

@@ -16,6 +16,7 @@ describe('configuration', () => {
       cookieSecure: false,
       production: false,
       sessionSecret: DEV_SESSION_SECRET,
+      readCacheMs: 1000,
     });
     expect(c.webDist).toBe(path.resolve(__dirname, '..', 'dist'));
     expect(warnings).toEqual([]);
@@ -29,6 +30,7 @@ describe('configuration', () => {
     expect(c.cookieSecure).toBe(true);
     expect(c.queuePrefix).toBe('keel-t-1');
     expect(c.smtpPort).toBe(2626);
+    expect(loadConfig({ READ_CACHE_MS: '0' }).readCacheMs).toBe(0);
   });
 
   it('refuses bad values, naming the variable', () => {
@@ -37,6 +39,9 @@ describe('configuration', () => {
     expect(() => loadConfig({ PORT: '70000' })).toThrow(/PORT must be 0\.\.65535/);
     expect(() => loadConfig({ APP_URL: 'not a url' })).toThrow(/APP_URL: APP_URL must be a URL/);
     expect(() => loadConfig({ COOKIE_SECURE: 'maybe' })).toThrow(/COOKIE_SECURE/);
+    expect(() => loadConfig({ READ_CACHE_MS: 'soon' })).toThrow('Bad configuration:\n  READ_CACHE_MS: READ_CACHE_MS must be a number of milliseconds');
+    expect(() => loadConfig({ READ_CACHE_MS: '1.5' })).toThrow('Bad configuration:\n  READ_CACHE_MS: READ_CACHE_MS must be a whole number of milliseconds');
+    expect(() => loadConfig({ READ_CACHE_MS: '60000' })).toThrow('Bad configuration:\n  READ_CACHE_MS: READ_CACHE_MS must be 0..10000');
   });
 
   it('refuses to run in production with the development session secret (it is in the repository)', () => {

@@ -34,6 +34,13 @@ const configSchema = z.object({
   /** Secure cookies and trust one proxy hop (TLS terminated in front of us). */
   COOKIE_SECURE: flag.default(false),
   MAIL_FROM: z.string().min(3).default('Keel <keel@tarrow.example>'),
+  /** Longest age, ms, of a cached Watch/Trends query result (server/read-cache.ts); 0 turns the cache off. */
+  READ_CACHE_MS: z.coerce
+    .number({ error: 'READ_CACHE_MS must be a number of milliseconds' })
+    .int({ error: 'READ_CACHE_MS must be a whole number of milliseconds' })
+    .min(0, { error: 'READ_CACHE_MS must be 0..10000' })
+    .max(10_000, { error: 'READ_CACHE_MS must be 0..10000' })
+    .default(1000),
 });
 
 export interface Config {
@@ -51,6 +58,7 @@ export interface Config {
   webDist: string;
   cookieSecure: boolean;
   mailFrom: string;
+  readCacheMs: number;
 }
 
 export class ConfigError extends Error {
@@ -95,5 +103,6 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     webDist: path.resolve(c.WEB_DIST),
     cookieSecure: c.COOKIE_SECURE,
     mailFrom: c.MAIL_FROM,
+    readCacheMs: c.READ_CACHE_MS,
   };
 }

@@ -1,9 +1,11 @@
-// Passport with the local strategy (e-mail + password). Sessions keep only the person's id; each
-// request reloads the person, so a role change applies at once and a disabled person is signed out.
+// Passport with the local strategy (e-mail + password). Sessions keep only the person's id; the
+// person is reloaded (through the ≤ 1 s read cache), so a role change applies at once and a
+// disabled person is signed out.
 import { Passport } from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { findPersonByEmail, findPersonById, type PersonRow } from '../../db/queries/people';
 import type { Deps } from '../deps';
+import { readCache } from '../events/live';
 import { burnPasswordCheck, verifyPassword } from './passwords';
 
 declare global {
@@ -47,11 +49,16 @@ export function createPassport(deps: Deps): InstanceType<typeof Passport> {
   passport.serializeUser((user, done) => done(null, (user as PersonRow).id));
   passport.deserializeUser((id: unknown, done) => {
     if (typeof id !== 'number') return done(null, false);
-    findPersonById(deps.db, { id }).then(
-      // A missing or disabled person ends the session's sign-in (passport drops the user).
-      (person) => done(null, person && !person.disabled ? person : false),
-      (err) => done(err),
-    );
+    // Shared for up to READ_CACHE_MS by this process's concurrent requests; emptied after every
+    // state-changing request here (a role change applies at once) and on every live event. Ending
+    // a disabled person's sessions deletes their session rows, which this cache never holds.
+    readCache(deps)
+      .get(`person:${id}`, () => findPersonById(deps.db, { id }))
+      .then(
+        // A missing or disabled person ends the session's sign-in (passport drops the user).
+        (person) => done(null, person && !person.disabled ? person : false),
+        (err) => done(err),
+      );
   });
   return passport;
 }

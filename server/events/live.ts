@@ -6,6 +6,7 @@ import type { ServerResponse } from 'node:http';
 import { Redis } from 'ioredis';
 import { createAnalysisQueues, type AnalysisQueues } from '../../jobs/processors/analysis-queues';
 import type { Deps } from '../deps';
+import { createReadCache, type ReadCache } from '../read-cache';
 import { createEventBus, eventChannel, type EventBus } from './bus';
 
 interface Live {
@@ -59,4 +60,30 @@ export function analysisQueues(deps: Deps): AnalysisQueues {
 export function trackStream(res: ServerResponse): void {
   openStreams.add(res);
   res.on('close', () => openStreams.delete(res));
+}
+
+const caches = new WeakMap<Deps, ReadCache>();
+
+/**
+ * This process's cache of hot read results (server/read-cache.ts), made on first use. Every live
+ * event (a scan stored windows, an alert changed — from any worker or server) empties it.
+ */
+export function readCache(deps: Deps): ReadCache {
+  let c = caches.get(deps);
+  if (!c) {
+    const cache = createReadCache({ ttlMs: deps.config.readCacheMs });
+    c = cache;
+    caches.set(deps, cache);
+    if (deps.config.readCacheMs > 0) {
+      liveBus(deps)
+        .subscribe(() => cache.invalidate())
+        .catch((err: Error) => deps.log.warn(`read cache: could not subscribe to live events (entries expire after ${deps.config.readCacheMs} ms): ${err.message}`));
+    }
+  }
+  return c;
+}
+
+/** Empties this process's read cache if it has one (after a state-changing request). */
+export function invalidateReadCache(deps: Deps): void {
+  caches.get(deps)?.invalidate();
 }

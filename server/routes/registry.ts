@@ -34,9 +34,25 @@ export interface RouteContext<K extends EndpointKey> {
   setStatus(status: number): void;
 }
 
+/**
+ * An answer serialised once and sent as is to many requests (the read cache keeps these: the
+ * JSON text of a Watch snapshot is built once, not once per poll). `T` is the answer's type, so a
+ * route can only return the JSON of its own response shape.
+ */
+export class JsonAnswer<T> {
+  readonly text: string;
+  /** Type marker only (never set). */
+  declare readonly value?: T;
+  constructor(value: T) {
+    this.text = JSON.stringify(value);
+  }
+}
+
+type Answer<K extends EndpointKey> = In<(typeof ENDPOINTS)[K]['response']>;
+
 export interface RouteDef<K extends EndpointKey = EndpointKey> {
   key: K;
-  handler: (ctx: RouteContext<K>) => Promise<In<(typeof ENDPOINTS)[K]['response']>>;
+  handler: (ctx: RouteContext<K>) => Promise<Answer<K> | JsonAnswer<Answer<K>>>;
   rateLimit?: RateLimitName;
   /** false: mount without the session (health must answer while PostgreSQL is down). */
   session?: boolean;
@@ -130,13 +146,14 @@ function handle(r: RouteDef, e: EndpointDef, opts: MountOptions): RequestHandler
       // Streams and file downloads answer by themselves (headers already sent, nothing returned).
       if (res.headersSent) return;
       if (opts.checkResponses && status < 400) {
-        const checked = e.response.safeParse(result);
+        const checked = e.response.safeParse(result instanceof JsonAnswer ? JSON.parse(result.text) : result);
         if (!checked.success) {
           opts.deps.log.error(`response of ${r.key} breaks its schema`, checked.error);
           throw new InternalError(`The server built an invalid answer for ${e.method} ${e.path}`);
         }
       }
-      res.status(status).json(result);
+      if (result instanceof JsonAnswer) res.status(status).type('application/json').send(result.text);
+      else res.status(status).json(result);
     };
     run().catch(next);
   };
