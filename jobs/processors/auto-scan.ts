@@ -7,6 +7,7 @@
 // Turn it off with KEEL_AUTO_SCAN=0 (scans then start only from POST /api/recordings/:id/scans).
 import { sql } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../../db/client';
+import { recordAudit } from '../../db/queries/audit';
 import { createAnalysis, failAnalysis, recordingChannelList, setAnalysisJob, type AnalysisRow } from '../../db/queries/scans';
 import { checkAmbientOptions, DEFAULT_AMBIENT_OPTIONS, type AmbientOptionsInput } from '../../modal/ambient';
 import { ModalInputError } from '../../modal/errors';
@@ -60,6 +61,13 @@ export async function createScanOnce(
       method: 'error' in s ? null : s.method,
       settings: 'error' in s ? { ...(params.settings ?? {}) } : s.settings,
       createdBy: params.createdBy ?? null,
+    });
+    // The audit trail covers scans nobody asked for too: who = nobody (the system), and why.
+    await recordAudit(tx, {
+      personId: params.createdBy ?? null,
+      action: 'scan.start',
+      target: `analysis:${analysis.id}`,
+      details: { recording: r.id, automatic: true, ...('error' in s ? { refused: s.error } : { method: s.method, windowSeconds: s.settings.windowSeconds, stepSeconds: s.settings.stepSeconds }) },
     });
     if ('error' in s) {
       // recorded as a failed scan with the reason, so the sweep does not try again and again

@@ -63,6 +63,9 @@ describe('ingest → scan', () => {
     // 40 min with 20-min windows stepped by 1 min (the defaults): 21 windows
     expect(scan.windows).toBe(21);
     expect(scan.progress).toBe(1);
+    // started by the system, not by a person: in the audit trail all the same
+    const audit = await stack.pool.query(`select person_id, details from audit_log where action = 'scan.start' and target = $1`, [`analysis:${scan.id}`]);
+    expect(audit.rows).toEqual([{ person_id: null, details: expect.objectContaining({ automatic: true, method: expect.any(String), windowSeconds: 1200, stepSeconds: 60 }) }]);
     const r = await operator.get(`/api/scans/${scan.id}`);
     expect(r.status).toBe(200);
     const w = r.body.windows as { start: string; end: string; skipped: boolean; transferMw: Record<string, number>; angleDeg: Record<string, number> }[];
