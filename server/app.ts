@@ -80,7 +80,7 @@ export function createApp(deps: Deps): KeelApp {
   mountRoutes(api, routes, {
     deps,
     session: session.middleware,
-    rateLimits: createRateLimits(),
+    rateLimits: createRateLimits({ redis: deps.redis, prefix: config.queuePrefix, warn: (m) => deps.log.warn(m) }),
     checkResponses: !config.production,
     basePath: '/api',
   });
