@@ -2,8 +2,8 @@
 // and the modes as mode estimates (fit_id set) with their shapes.
 import { asc, eq, inArray } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../client';
-import { fits, modeEstimates, modeShapes } from '../schema';
-import type { EstimateInput } from './scans';
+import { fits, modeEstimates } from '../schema';
+import { insertEstimates, type EstimateInput } from './scans';
 
 export type FitRow = typeof fits.$inferSelect;
 export type FitEstimateRow = typeof modeEstimates.$inferSelect;
@@ -51,29 +51,7 @@ export async function replaceFits(db: Db, params: { analysisId: number; from: Da
         })
         .returning({ id: fits.id });
       ids.push(f.id);
-      if (m.estimates.length === 0) continue;
-      const est = await tx
-        .insert(modeEstimates)
-        .values(
-          m.estimates.map((e) => ({
-            fitId: f.id,
-            trackId: e.trackId,
-            at: e.at,
-            frequencyHz: e.frequencyHz,
-            dampingPercent: e.dampingPercent,
-            dampingLo: e.dampingLo,
-            dampingHi: e.dampingHi,
-            frequencyLo: e.frequencyLo,
-            frequencyHi: e.frequencyHi,
-            amplitude: e.amplitude,
-            fitQuality: e.fitQuality,
-            method: e.method,
-            forced: e.forced,
-          })),
-        )
-        .returning({ id: modeEstimates.id });
-      const shapes = m.estimates.flatMap((e, i) => e.shape.map((s) => ({ estimateId: est[i].id, channelId: s.channelId, magnitude: s.magnitude, angleDeg: s.angleDeg })));
-      if (shapes.length) await tx.insert(modeShapes).values(shapes);
+      await insertEstimates(tx, { source: { fitId: f.id }, estimates: m.estimates });
     }
     return ids;
   });

@@ -154,6 +154,41 @@ export interface EstimateInput {
   shape: { channelId: number; magnitude: number; angleDeg: number }[];
 }
 
+/**
+ * Stores estimates of one scan window or one fit method, each with its mode shape. The caller's
+ * transaction keeps an estimate and its shape together.
+ */
+export async function insertEstimates(
+  tx: DbOrTx,
+  params: { source: { windowId: number } | { fitId: number }; estimates: EstimateInput[] },
+): Promise<void> {
+  if (params.estimates.length === 0) return;
+  const ids = await tx
+    .insert(modeEstimates)
+    .values(
+      params.estimates.map((e) => ({
+        ...params.source,
+        trackId: e.trackId,
+        at: e.at,
+        frequencyHz: e.frequencyHz,
+        dampingPercent: e.dampingPercent,
+        dampingLo: e.dampingLo,
+        dampingHi: e.dampingHi,
+        frequencyLo: e.frequencyLo,
+        frequencyHi: e.frequencyHi,
+        amplitude: e.amplitude,
+        fitQuality: e.fitQuality,
+        method: e.method,
+        forced: e.forced,
+      })),
+    )
+    .returning({ id: modeEstimates.id });
+  const shapes = params.estimates.flatMap((e, i) =>
+    e.shape.map((s) => ({ estimateId: ids[i].id, channelId: s.channelId, magnitude: s.magnitude, angleDeg: s.angleDeg })),
+  );
+  if (shapes.length) await tx.insert(modeShapes).values(shapes);
+}
+
 export interface WindowInput {
   analysisId: number;
   start: Date;
@@ -180,32 +215,7 @@ export async function storeScanWindow(db: Db, params: WindowInput): Promise<{ st
       .onConflictDoNothing({ target: [scanWindows.analysisId, scanWindows.startTime] })
       .returning({ id: scanWindows.id });
     if (!w) return { stored: false, windowId: null };
-    if (params.estimates.length) {
-      const ids = await tx
-        .insert(modeEstimates)
-        .values(
-          params.estimates.map((e) => ({
-            windowId: w.id,
-            trackId: e.trackId,
-            at: e.at,
-            frequencyHz: e.frequencyHz,
-            dampingPercent: e.dampingPercent,
-            dampingLo: e.dampingLo,
-            dampingHi: e.dampingHi,
-            frequencyLo: e.frequencyLo,
-            frequencyHi: e.frequencyHi,
-            amplitude: e.amplitude,
-            fitQuality: e.fitQuality,
-            method: e.method,
-            forced: e.forced,
-          })),
-        )
-        .returning({ id: modeEstimates.id });
-      const shapes = params.estimates.flatMap((e, i) =>
-        e.shape.map((s) => ({ estimateId: ids[i].id, channelId: s.channelId, magnitude: s.magnitude, angleDeg: s.angleDeg })),
-      );
-      if (shapes.length) await tx.insert(modeShapes).values(shapes);
-    }
+    await insertEstimates(tx, { source: { windowId: w.id }, estimates: params.estimates });
     return { stored: true, windowId: w.id };
   });
 }
