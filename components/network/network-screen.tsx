@@ -15,7 +15,7 @@ import { Text } from '../text';
 import { TextLink } from '../text-link';
 import { colors, radii, space } from '../theme';
 import { kindInfo, NETWORK_KINDS, newTitle, type NetworkKindInfo } from './kinds';
-import { FORM_OF } from './network-forms';
+import { NetworkForm } from './network-forms';
 import { columnsOf, rowName, rowsOf } from './network-lists';
 
 export interface NetworkScreenProps {
@@ -69,10 +69,9 @@ export function NetworkScreen({ kind: kindKey, editing }: NetworkScreenProps) {
     const rows = rowsOf(kind.key, m);
     const record = editing && editing !== 'new' ? (rows.find((r) => String(r.id) === editing) ?? null) : null;
     const formOpen = mayEdit && !!editing && (editing === 'new' || record != null);
-    const Form = FORM_OF[kind.key];
 
     const form = formOpen ? (
-      <Form key={`${kind.key}-${editing}`} kind={kind} record={record} model={m} onDone={goList} onCancel={() => goList()} />
+      <NetworkForm key={`${kind.key}-${editing}`} kind={kind} record={record} model={m} onDone={goList} onCancel={() => goList()} />
     ) : editing && editing !== 'new' && !record ? (
       <ErrorState title={`No ${kind.singular} with id ${editing}`} message="It may have been deleted." />
     ) : editing && !mayEdit ? (

@@ -2,6 +2,10 @@
 // checked as a whole (an update is merged into the stored row and validated like a create),
 // references must exist and make sense, deleting what is still referred to is refused with 409,
 // and each change is written to the audit log in the same transaction.
+//
+// The six kinds differ only in what their description below says (fields, unique key, reference
+// rules, how a row is answered); one route builder serves them all, so a rule about editing the
+// network (audit, 404/409 wording, merge-then-validate) holds for every kind at once.
 import { z } from 'zod';
 import { recordAudit } from '../../db/queries/audit';
 import type { DbOrTx } from '../../db/client';
@@ -45,148 +49,133 @@ interface Crud {
   remove(db: DbOrTx, p: { id: number }): Promise<boolean>;
 }
 
-interface Resource {
+// The query sets are typed per table; the generic handlers only pass rows through.
+const QUERIES = {
+  area: areaQueries,
+  site: siteQueries,
+  pmu: pmuQueries,
+  channel: channelQueries,
+  corridor: corridorQueries,
+  track: trackQueries,
+} as unknown as Record<NetworkKind, Crud>;
+
+/** How messages name a kind ("No PMU with id 7", "Cannot delete mode track …"). */
+const LABEL: Record<NetworkKind, string> = {
+  area: 'area',
+  site: 'site',
+  pmu: 'PMU',
+  channel: 'channel',
+  corridor: 'corridor',
+  track: 'mode track',
+};
+
+/**
+ * A field holding the id of another record: it must exist, and `check` then says what is wrong
+ * with the one found (wrong kind of channel, another site). Rules run in the order listed, which
+ * is the order of the 400 details.
+ */
+interface RefRule {
+  field: string;
+  to: NetworkKind;
+  check?: (found: Row, v: Values) => string[];
+}
+
+interface ResourceSpec {
   kind: NetworkKind;
-  /** URL segment and endpoint-key prefix, e.g. "sites". */
-  plural: 'areas' | 'sites' | 'pmus' | 'channels' | 'corridors' | 'tracks';
-  /** Key of a single item in responses, e.g. "site". */
-  one: string;
-  label: string;
-  crud: Crud;
   createSchema: z.ZodType;
-  /** The stored row in create-body form (to merge a PATCH into). */
-  editable(row: Row): Values;
-  /** Which field holds the unique key (409 messages point at it). */
-  keyField: 'code' | 'name';
-  checkRefs(db: DbOrTx, v: Values, id: number | null): Promise<ErrorDetail[]>;
+  /** The fields of the create body: what a PATCH is merged into, what the audit compares. */
+  fields: readonly string[];
+  /** Which field holds the unique key (409 messages and audit targets point at it). */
+  keyField?: 'code' | 'name';
+  refs?: RefRule[];
+  /** Rules across records beyond single references; `refsOk` is false when a reference failed. */
+  crossCheck?: (db: DbOrTx, v: Values, id: number | null, refsOk: boolean) => Promise<ErrorDetail[]>;
   toDtos(db: DbOrTx, rows: Row[]): Promise<unknown[]>;
 }
 
-const pick = (row: Row, keys: string[]): Values => Object.fromEntries(keys.map((k) => [k, row[k]]));
-
-async function mustExist(db: DbOrTx, q: Crud, id: unknown, path: string, what: string, out: ErrorDetail[]): Promise<Row | undefined> {
-  if (typeof id !== 'number') return undefined;
-  const row = await q.get(db, { id });
-  if (!row) out.push({ path, message: `No ${what} with id ${id}` });
-  return row;
+interface Resource extends Required<Omit<ResourceSpec, 'crossCheck'>>, Pick<ResourceSpec, 'crossCheck'> {
+  /** URL segment, endpoint-key prefix and list key in responses, e.g. "sites". */
+  plural: `${NetworkKind}s`;
+  label: string;
+  crud: Crud;
 }
 
+function resource(spec: ResourceSpec): Resource {
+  return { keyField: 'code', refs: [], ...spec, plural: `${spec.kind}s`, label: LABEL[spec.kind], crud: QUERIES[spec.kind] };
+}
+
+/** A DTO mapper applied row by row, for kinds whose answer needs nothing beyond the row. */
+const each =
+  <R,>(to: (row: R) => unknown) =>
+  async (_db: DbOrTx, rows: Row[]) =>
+    rows.map((r) => to(r as unknown as R));
+
 const RESOURCES: Resource[] = [
-  {
+  resource({
     kind: 'area',
-    plural: 'areas',
-    one: 'area',
-    label: 'area',
-    crud: areaQueries as unknown as Crud,
     createSchema: areaCreateBodySchema,
-    editable: (r) => pick(r, ['code', 'name', 'description']),
-    keyField: 'code',
-    checkRefs: async () => [],
-    toDtos: async (_db, rows) => rows.map((r) => toArea(r as never)),
-  },
-  {
+    fields: ['code', 'name', 'description'],
+    toDtos: each(toArea),
+  }),
+  resource({
     kind: 'site',
-    plural: 'sites',
-    one: 'site',
-    label: 'site',
-    crud: siteQueries as unknown as Crud,
     createSchema: siteCreateBodySchema,
-    editable: (r) => pick(r, ['code', 'name', 'areaId', 'kV', 'x', 'y']),
-    keyField: 'code',
-    checkRefs: async (db, v) => {
-      const out: ErrorDetail[] = [];
-      await mustExist(db, areaQueries as unknown as Crud, v.areaId, 'areaId', 'area', out);
-      return out;
-    },
-    toDtos: async (_db, rows) => rows.map((r) => toSite(r as never)),
-  },
-  {
+    fields: ['code', 'name', 'areaId', 'kV', 'x', 'y'],
+    refs: [{ field: 'areaId', to: 'area' }],
+    toDtos: each(toSite),
+  }),
+  resource({
     kind: 'pmu',
-    plural: 'pmus',
-    one: 'pmu',
-    label: 'PMU',
-    crud: pmuQueries as unknown as Crud,
     createSchema: pmuCreateBodySchema,
-    editable: (r) => pick(r, ['code', 'name', 'siteId', 'reportingRate', 'description']),
-    keyField: 'code',
-    checkRefs: async (db, v, id) => {
-      const out: ErrorDetail[] = [];
-      await mustExist(db, siteQueries as unknown as Crud, v.siteId, 'siteId', 'site', out);
-      if (id !== null && out.length === 0) {
-        // Moving a PMU to another site would leave its channels at the old one.
-        const own = (await channelQueries.list(db)).filter((c) => c.pmuId === id && c.siteId !== v.siteId);
-        if (own.length > 0) {
-          out.push({ path: 'siteId', message: `${own.length} channel(s) of this PMU are at its current site; move or delete them first` });
-        }
-      }
-      return out;
+    fields: ['code', 'name', 'siteId', 'reportingRate', 'description'],
+    refs: [{ field: 'siteId', to: 'site' }],
+    crossCheck: async (db, v, id, refsOk) => {
+      if (id === null || !refsOk) return [];
+      // Moving a PMU to another site would leave its channels at the old one.
+      const own = (await channelQueries.list(db)).filter((c) => c.pmuId === id && c.siteId !== v.siteId);
+      return own.length > 0 ? [{ path: 'siteId', message: `${own.length} channel(s) of this PMU are at its current site; move or delete them first` }] : [];
     },
-    toDtos: async (_db, rows) => rows.map((r) => toPmu(r as never)),
-  },
-  {
+    toDtos: each(toPmu),
+  }),
+  resource({
     kind: 'channel',
-    plural: 'channels',
-    one: 'channel',
-    label: 'channel',
-    crud: channelQueries as unknown as Crud,
     createSchema: channelCreateBodySchema,
-    editable: (r) => pick(r, ['name', 'siteId', 'pmuId', 'kind', 'unit', 'description']),
+    fields: ['name', 'siteId', 'pmuId', 'kind', 'unit', 'description'],
+    // Channel names are the column names of uploaded files, so the name is the unique key.
     keyField: 'name',
-    checkRefs: async (db, v) => {
-      const out: ErrorDetail[] = [];
-      await mustExist(db, siteQueries as unknown as Crud, v.siteId, 'siteId', 'site', out);
-      const pmu = await mustExist(db, pmuQueries as unknown as Crud, v.pmuId, 'pmuId', 'PMU', out);
-      if (pmu && pmu.siteId !== v.siteId) out.push({ path: 'pmuId', message: 'The PMU is at another site than the channel' });
-      return out;
-    },
-    toDtos: async (_db, rows) => rows.map((r) => toChannel(r as never)),
-  },
-  {
+    refs: [
+      { field: 'siteId', to: 'site' },
+      { field: 'pmuId', to: 'pmu', check: (pmu, v) => (pmu.siteId !== v.siteId ? ['The PMU is at another site than the channel'] : []) },
+    ],
+    toDtos: each(toChannel),
+  }),
+  resource({
     kind: 'corridor',
-    plural: 'corridors',
-    one: 'corridor',
-    label: 'corridor',
-    crud: corridorQueries as unknown as Crud,
     createSchema: corridorCreateBodySchema,
-    editable: (r) =>
-      pick(r, ['code', 'name', 'fromSiteId', 'toSiteId', 'kV', 'flowChannelId', 'fromAngleChannelId', 'toAngleChannelId']),
-    keyField: 'code',
-    checkRefs: async (db, v) => {
-      const out: ErrorDetail[] = [];
-      const sites = siteQueries as unknown as Crud;
-      const chans = channelQueries as unknown as Crud;
-      await mustExist(db, sites, v.fromSiteId, 'fromSiteId', 'site', out);
-      await mustExist(db, sites, v.toSiteId, 'toSiteId', 'site', out);
-      const flow = await mustExist(db, chans, v.flowChannelId, 'flowChannelId', 'channel', out);
-      if (flow && flow.kind !== 'flow') out.push({ path: 'flowChannelId', message: `Must be a flow channel (this one is ${String(flow.kind)})` });
-      if (flow && flow.siteId !== v.fromSiteId && flow.siteId !== v.toSiteId) {
-        out.push({ path: 'flowChannelId', message: 'Must be measured at one end of the corridor' });
-      }
-      for (const [field, end] of [
-        ['fromAngleChannelId', 'fromSiteId'],
-        ['toAngleChannelId', 'toSiteId'],
-      ] as const) {
-        const ch = await mustExist(db, chans, v[field], field, 'channel', out);
-        if (ch && ch.kind !== 'angle') out.push({ path: field, message: `Must be an angle channel (this one is ${String(ch.kind)})` });
-        else if (ch && ch.siteId !== v[end]) out.push({ path: field, message: `Must be measured at the corridor's ${end === 'fromSiteId' ? 'from' : 'to'} site` });
-      }
-      return out;
-    },
-    toDtos: async (_db, rows) => rows.map((r) => toCorridor(r as never)),
-  },
-  {
+    fields: ['code', 'name', 'fromSiteId', 'toSiteId', 'kV', 'flowChannelId', 'fromAngleChannelId', 'toAngleChannelId'],
+    refs: [
+      { field: 'fromSiteId', to: 'site' },
+      { field: 'toSiteId', to: 'site' },
+      {
+        field: 'flowChannelId',
+        to: 'channel',
+        check: (flow, v) => [
+          ...(flow.kind !== 'flow' ? [`Must be a flow channel (this one is ${String(flow.kind)})`] : []),
+          ...(flow.siteId !== v.fromSiteId && flow.siteId !== v.toSiteId ? ['Must be measured at one end of the corridor'] : []),
+        ],
+      },
+      { field: 'fromAngleChannelId', to: 'channel', check: angleAt('fromSiteId', 'from') },
+      { field: 'toAngleChannelId', to: 'channel', check: angleAt('toSiteId', 'to') },
+    ],
+    toDtos: each(toCorridor),
+  }),
+  resource({
     kind: 'track',
-    plural: 'tracks',
-    one: 'track',
-    label: 'mode track',
-    crud: trackQueries as unknown as Crud,
     createSchema: trackCreateBodySchema,
-    editable: (r) =>
-      pick(r, ['code', 'name', 'description', 'minHz', 'maxHz', 'poorBelow', 'lowBelow', 'corridorId', 'reference']),
-    keyField: 'code',
-    checkRefs: async (db, v) => {
+    fields: ['code', 'name', 'description', 'minHz', 'maxHz', 'poorBelow', 'lowBelow', 'corridorId', 'reference'],
+    refs: [{ field: 'corridorId', to: 'corridor' }],
+    crossCheck: async (db, v) => {
       const out: ErrorDetail[] = [];
-      await mustExist(db, corridorQueries as unknown as Crud, v.corridorId, 'corridorId', 'corridor', out);
       const ref = v.reference as { groupA: string[]; groupB: string[] };
       const known = new Set((await sitesByCodes(db, { codes: [...ref.groupA, ...ref.groupB] })).map((s) => s.code));
       for (const group of ['groupA', 'groupB'] as const) {
@@ -200,8 +189,18 @@ const RESOURCES: Resource[] = [
       const latest = await latestEstimatesByTrack(db, { trackIds: rows.map((r) => r.id) });
       return rows.map((r) => toTrack(r as unknown as TrackRow, latest.get(r.id)));
     },
-  },
+  }),
 ];
+
+/** A corridor end's angle channel: an angle, measured at that end's site. */
+function angleAt(end: 'fromSiteId' | 'toSiteId', word: 'from' | 'to') {
+  return (ch: Row, v: Values): string[] => {
+    if (ch.kind !== 'angle') return [`Must be an angle channel (this one is ${String(ch.kind)})`];
+    return ch.siteId !== v[end] ? [`Must be measured at the corridor's ${word} site`] : [];
+  };
+}
+
+const pick = (row: Row, keys: readonly string[]): Values => Object.fromEntries(keys.map((k) => [k, row[k]]));
 
 function describe(res: Resource, row: Row): string {
   return `${res.label} "${String(row.name ?? row[res.keyField])}"`;
@@ -231,8 +230,17 @@ function duplicate(res: Resource, v: Values): ConflictError {
 }
 
 async function checkRefs(db: DbOrTx, res: Resource, v: Values, id: number | null): Promise<void> {
-  const details = await res.checkRefs(db, v, id);
-  if (details.length) throw validationError(details);
+  const out: ErrorDetail[] = [];
+  for (const rule of res.refs) {
+    const ref = v[rule.field];
+    // null is "none" where the schema allows it; other types were refused by the schema already.
+    if (typeof ref !== 'number') continue;
+    const found = await QUERIES[rule.to].get(db, { id: ref });
+    if (!found) out.push({ path: rule.field, message: `No ${LABEL[rule.to]} with id ${ref}` });
+    else for (const message of rule.check?.(found, v) ?? []) out.push({ path: rule.field, message });
+  }
+  if (res.crossCheck) out.push(...(await res.crossCheck(db, v, id, out.length === 0)));
+  if (out.length) throw validationError(out);
 }
 
 function changedFields(before: Values, after: Values): string[] {
@@ -248,46 +256,49 @@ interface Ctx {
   ip: string | null;
 }
 
+/** list, create, update and remove of one kind, each an entry of the endpoint catalogue. */
 function resourceRoutes(res: Resource): RouteDef[] {
   const key = (op: string) => `${res.plural}.${op}` as EndpointKey;
-  const one = async (db: DbOrTx, row: Row) => ({ [res.one]: (await res.toDtos(db, [row]))[0] });
+  const editable = (row: Row) => pick(row, res.fields);
+  const one = async (db: DbOrTx, row: Row) => ({ [res.kind]: (await res.toDtos(db, [row]))[0] });
+  const stored = async (db: DbOrTx, id: number) => {
+    const row = await res.crud.get(db, { id });
+    if (!row) throw new NotFoundError(`No ${res.label} with id ${id}`);
+    return row;
+  };
   const audit = (db: DbOrTx, ctx: Ctx, action: string, row: Row, details: Record<string, unknown>) =>
     recordAudit(db, { personId: ctx.person!.id, action: `network.${action}`, target: `${res.kind}:${String(row[res.keyField])}`, details, ip: ctx.ip });
 
   const list = async ({ deps }: { deps: Deps }) => ({ [res.plural]: await res.toDtos(deps.db, await res.crud.list(deps.db)) });
 
-  const create = async (ctx: Ctx) => {
-    const v = ctx.body;
-    return ctx.deps.db.transaction(async (tx) => {
+  const create = async (ctx: Ctx) =>
+    ctx.deps.db.transaction(async (tx) => {
+      const v = ctx.body;
       await checkRefs(tx, res, v, null);
       const row = await guardUnique(res, v, () => res.crud.insert(tx, { values: v }));
       await audit(tx, ctx, 'create', row, { values: v });
       return one(tx, row);
     });
-  };
 
   const update = async (ctx: Ctx) =>
     ctx.deps.db.transaction(async (tx) => {
-      const before = await res.crud.get(tx, { id: ctx.params.id });
-      if (!before) throw new NotFoundError(`No ${res.label} with id ${ctx.params.id}`);
-      const merged = { ...res.editable(before), ...ctx.body };
+      const before = await stored(tx, ctx.params.id);
+      const was = editable(before);
+      const merged = { ...was, ...ctx.body };
       const parsed = res.createSchema.safeParse(merged);
       if (!parsed.success) throw validationErrorFromZod(parsed.error, merged);
       const v = parsed.data as Values;
       await checkRefs(tx, res, v, before.id);
-      const changed = changedFields(res.editable(before), v);
+      const changed = changedFields(was, v);
       if (changed.length === 0) return one(tx, before);
       const row = await guardUnique(res, v, () => res.crud.update(tx, { id: before.id, values: v }));
-      await audit(tx, ctx, 'update', row!, {
-        changed: Object.fromEntries(changed.map((k) => [k, { from: res.editable(before)[k], to: v[k] }])),
-      });
+      await audit(tx, ctx, 'update', row!, { changed: Object.fromEntries(changed.map((k) => [k, { from: was[k], to: v[k] }])) });
       return one(tx, row!);
     });
 
   const remove = async (ctx: Ctx) =>
     ctx.deps.db.transaction(async (tx) => {
-      const row = await res.crud.get(tx, { id: ctx.params.id });
-      if (!row) throw new NotFoundError(`No ${res.label} with id ${ctx.params.id}`);
+      const row = await stored(tx, ctx.params.id);
       const refs = await referencesTo(tx, { kind: res.kind, id: row.id });
       if (refs.length > 0) {
         const what = refs.map((r) => plural(r.count, r.what));
@@ -297,7 +308,7 @@ function resourceRoutes(res: Resource): RouteDef[] {
         );
       }
       await res.crud.remove(tx, { id: row.id });
-      await audit(tx, ctx, 'delete', row, { values: res.editable(row) });
+      await audit(tx, ctx, 'delete', row, { values: editable(row) });
       return { ok: true as const };
     });
 
