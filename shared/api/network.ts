@@ -296,10 +296,10 @@ export const trackCreateBodySchema = z
   .strict()
   .superRefine((t, ctx) => {
     if (t.minHz >= t.maxHz) {
-      ctx.addIssue({ code: 'custom', path: ['maxHz'], message: 'maxHz must be above minHz' });
+      ctx.addIssue({ code: 'custom', path: ['maxHz'], message: 'Must be above the lowest frequency (minHz)' });
     }
     if (t.poorBelow >= t.lowBelow) {
-      ctx.addIssue({ code: 'custom', path: ['lowBelow'], message: 'lowBelow must be above poorBelow' });
+      ctx.addIssue({ code: 'custom', path: ['lowBelow'], message: 'Must be above the poor threshold (poorBelow)' });
     }
     const both = t.reference.groupA.filter((c) => t.reference.groupB.includes(c));
     if (both.length > 0) {

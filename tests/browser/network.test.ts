@@ -139,7 +139,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await trackForm.waitFor();
         await trackForm.getByLabel('Poor below (%)', { exact: true }).fill('7');
         await trackForm.getByRole('button', { name: 'Save changes' }).click();
-        await trackForm.getByText('lowBelow must be above poorBelow', { exact: true }).waitFor({ timeout: 10_000 });
+        await trackForm.getByText('Must be above the poor threshold (poorBelow)', { exact: true }).waitFor({ timeout: 10_000 });
         expect(await trackForm.getByLabel('Low below (%)', { exact: true }).getAttribute('aria-invalid')).toBe('true');
         expect(patches).toEqual([]);
 

@@ -71,7 +71,7 @@ const CASES: Partial<Record<EndpointKey, BadCase[]>> = {
     { name: 'band upside down, thresholds upside down', body: { code: 't', name: 'T', minHz: 0.5, maxHz: 0.4, poorBelow: 5, lowBelow: 3 }, fields: ['maxHz', 'lowBelow'] },
   ],
   'tracks.update': [
-    { name: 'minHz above the stored maxHz', params: { id: 1 }, body: { minHz: 0.5 }, fields: ['maxHz'], messages: { maxHz: 'maxHz must be above minHz' } },
+    { name: 'minHz above the stored maxHz', params: { id: 1 }, body: { minHz: 0.5 }, fields: ['maxHz'], messages: { maxHz: 'Must be above the lowest frequency (minHz)' } },
     { name: 'unknown site in the reference shape', params: { id: 1 }, body: { reference: { groupA: ['nowhere'], groupB: [] } }, fields: ['reference.groupA.0'], messages: { 'reference.groupA.0': 'No site with code "nowhere"' } },
     { name: 'unknown corridor', params: { id: 1 }, body: { corridorId: 999999 }, fields: ['corridorId'] },
   ],
