@@ -4,8 +4,12 @@
 // out and drawn. Beside it the corridor angle against transfer with the 45° practical limit
 // (common practice). Save (admin, engineer, planner), export the windows as CSV, reopen saved
 // studies. A study is advisory and reviewed by a qualified engineer before it changes a limit.
+//
+// The fit uses every window of the period; the scatter draws the answer's points, which over a
+// long period are a bounded sample (rule in shared/api/studies.ts) — the screen says so under the
+// chart. The CSV export is the server's, with every window (GET /api/studies/transfer.csv).
 import { router } from 'expo-router';
-import { useMemo, useState } from 'react';
+import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { SavedStudySummary, TransferStudy } from '@/shared/api/studies';
 import { ApiError, errorMessage } from '@/hooks/api-client';
@@ -27,7 +31,7 @@ import { bands, colors, radii, space } from '../theme';
 import { DownloadLink } from '../trends/download-link';
 import { DAY_MS, PeriodPicker, type PeriodChoice } from '../trends/period-picker';
 import { formatMw, formatMwRange } from './format-mw';
-import { studyCsv, studyCsvName } from './study-csv';
+import { studyCsvName, studyCsvUrl } from './study-csv';
 
 export const STUDY_PERIODS: PeriodChoice[] = [
   { key: '1d', title: '24 h', label: 'Last 24 hours', ms: DAY_MS },
@@ -123,7 +127,7 @@ export function TransferScreen({ track: trackParam, saved: savedParam }: { track
     result = <ErrorState title="Could not run the study" message={errorMessage(error)} onRetry={() => void (savedId != null ? saved.refetch() : live.refetch())} />;
   } else if (!study) {
     result = <LoadingState label="Running the transfer study…" />;
-  } else if (study.points.length === 0) {
+  } else if (study.pointsTotal === 0) {
     result = (
       <EmptyState title="No scan windows with a transfer reading in this period" message={`Choose a longer period, or check that the ${study.corridor.name} flow channels are in the recordings.`} />
     );
@@ -133,9 +137,9 @@ export function TransferScreen({ track: trackParam, saved: savedParam }: { track
 
   const side = (
     <View style={styles.stack}>
-      {study && study.points.length > 0 ? <ProjectionsPanel study={study} /> : null}
-      {study && study.points.length > 0 ? <ExportPanel study={study} /> : null}
-      {study && study.points.length > 0 && savedId == null && mayRun ? <SavePanel study={study} /> : null}
+      {study && study.pointsTotal > 0 ? <ProjectionsPanel study={study} /> : null}
+      {study && study.pointsTotal > 0 ? <ExportPanel study={study} mayExport={mayRun} saved={savedId != null} /> : null}
+      {study && study.pointsTotal > 0 && savedId == null && mayRun ? <SavePanel study={study} /> : null}
       <SavedPanel list={savedList.data?.studies} pending={savedList.isPending} error={savedList.error} activeId={savedId} />
     </View>
   );
@@ -155,10 +159,10 @@ export function TransferScreen({ track: trackParam, saved: savedParam }: { track
         ) : (
           <>
             {controls}
-            {study && study.points.length > 0 ? <ProjectionsPanel study={study} /> : null}
+            {study && study.pointsTotal > 0 ? <ProjectionsPanel study={study} /> : null}
             {result}
-            {study && study.points.length > 0 ? <ExportPanel study={study} /> : null}
-            {study && study.points.length > 0 && savedId == null && mayRun ? <SavePanel study={study} /> : null}
+            {study && study.pointsTotal > 0 ? <ExportPanel study={study} mayExport={mayRun} saved={savedId != null} /> : null}
+            {study && study.pointsTotal > 0 && savedId == null && mayRun ? <SavePanel study={study} /> : null}
             <SavedPanel list={savedList.data?.studies} pending={savedList.isPending} error={savedList.error} activeId={savedId} />
           </>
         )}
@@ -271,7 +275,8 @@ function ProjectionFigure({ what, p, level, shape, color, testID }: { what: stri
 
 function StudyResult({ study, wide, updating }: { study: TransferStudy; wide: boolean; updating: boolean }) {
   const t = study.track;
-  const used = study.points.filter((p) => !p.forced);
+  // the drawn points include the windows at the lowest and highest transfer (the sample keeps them)
+  const mws = study.points.map((p) => p.transferMw);
   const dFit = study.damping.fit;
   const aFit = study.angle.fit;
   const low = study.damping.projections.find((p) => p.threshold === 'low');
@@ -280,13 +285,14 @@ function StudyResult({ study, wide, updating }: { study: TransferStudy; wide: bo
   if (low?.x != null) projections.push({ x: low.x, y: low.y, lo: low.lo, hi: low.hi, label: `${formatPercent(low.y)} at ${formatMw(low.x)}`, color: bands.low.color });
   if (poor?.x != null) projections.push({ x: poor.x, y: poor.y, lo: poor.lo, hi: poor.hi, label: `${formatPercent(poor.y)} at ${formatMw(poor.x)}`, color: bands.poor.color });
   const dampingLabel =
-    `Damping ratio against ${study.corridor.name} transfer: ${used.length} scan windows from ${formatMw(Math.min(...used.map((p) => p.transferMw)))} to ${formatMw(Math.max(...used.map((p) => p.transferMw)))}. ` +
+    `Damping ratio against ${study.corridor.name} transfer: ${study.pointsUsed} scan windows from ${formatMw(Math.min(...mws))} to ${formatMw(Math.max(...mws))}` +
+    (study.pointsSampled ? `, ${study.pointsShown} of them drawn. ` : '. ') +
     (dFit ? `Fitted line falls ${(-dFit.slope * 100).toFixed(2)} % per 100 MW. ` : '') +
     `${poor?.x != null ? `Reaches ${formatPercent(poor.y)} at ${formatMw(poor.x)}` : `Does not reach ${formatPercent(t.poorBelow)}`}; ${low?.x != null ? `${formatPercent(low.y)} at ${formatMw(low.x)}` : `does not reach ${formatPercent(t.lowBelow)}`}. Threshold lines at ${formatPercent(t.lowBelow)} and ${formatPercent(t.poorBelow)}.`;
   const anglePts = study.points.filter((p) => p.angleDeg != null);
   const at = study.angle.atLimit;
   const angleProj: Projection[] = at?.x != null ? [{ x: at.x, y: at.y, lo: at.lo, hi: at.hi, label: `${study.angle.limitDeg}° at ${formatMw(at.x)}`, color: ANGLE_COLOR }] : [];
-  const angleLabel = `Corridor angle against transfer: ${anglePts.length} windows. ${at?.x != null ? `The fitted line reaches the ${study.angle.limitDeg}° practical limit at ${formatMw(at.x)}.` : `The line does not reach ${study.angle.limitDeg}°.`}`;
+  const angleLabel = `Corridor angle against transfer: ${aFit?.n ?? anglePts.length} windows${study.pointsSampled ? `, ${anglePts.length} of them drawn` : ''}. ${at?.x != null ? `The fitted line reaches the ${study.angle.limitDeg}° practical limit at ${formatMw(at.x)}.` : `The line does not reach ${study.angle.limitDeg}°.`}`;
   return (
     <View style={styles.stack}>
       <Panel title="Damping against transfer" aside={updating ? <Text variant="caption" muted>Updating…</Text> : undefined} testID="study-damping">
@@ -309,6 +315,12 @@ function StudyResult({ study, wide, updating }: { study: TransferStudy; wide: bo
           projections={projections}
           testID="study-damping-chart"
         />
+        {study.pointsSampled ? (
+          <Text variant="caption" muted style={styles.fitLine} testID="study-sample-note">
+            Showing {count(study.pointsShown)} of {count(study.pointsTotal)} windows (at each transfer level the lowest and highest damping and an even spread
+            between); the fitted line and the projections use all {count(study.pointsTotal)}.
+          </Text>
+        ) : null}
         {dFit ? (
           <Text variant="caption" muted style={styles.fitLine}>
             Line: damping = {dFit.intercept.toFixed(2)} % {dFit.slope < 0 ? '−' : '+'} {Math.abs(dFit.slope * 100).toFixed(3)} % per 100 MW; r² {dFit.r2.toFixed(2)}; {dFit.n} windows, about {dFit.nEffective.toFixed(1)} independent (windows overlap).
@@ -347,18 +359,36 @@ function StudyResult({ study, wide, updating }: { study: TransferStudy; wide: bo
   );
 }
 
-function ExportPanel({ study }: { study: TransferStudy }) {
-  const href = useMemo(() => `data:text/csv;charset=utf-8,${encodeURIComponent(studyCsv(study))}`, [study]);
+function ExportPanel({ study, mayExport, saved }: { study: TransferStudy; mayExport: boolean; saved: boolean }) {
   return (
     <Panel title="Export">
       <View style={styles.exportBody}>
-        <DownloadLink href={href} title="Download CSV" fileName={studyCsvName(study)} label={`Download the ${study.points.length} windows of this study as CSV`} />
-        <Text variant="caption" muted>
-          One row per scan window: start and end (UTC), transfer (MW), damping and its interval (%), corridor angle (°).
-        </Text>
+        {mayExport ? (
+          <>
+            <DownloadLink
+              href={studyCsvUrl(study)}
+              title="Download CSV"
+              fileName={studyCsvName(study)}
+              label={`Download the ${study.pointsTotal} windows of this study as CSV`}
+            />
+            <Text variant="caption" muted>
+              Every window of the period, one row each: start and end (UTC), transfer (MW), damping and its interval (%), corridor angle (°).
+              {saved ? ' The file is read from the estimates as they are now, which may differ from when the study was saved.' : ''}
+            </Text>
+          </>
+        ) : (
+          <Text variant="small" muted>
+            Downloading the windows of a study is for planners, engineers and administrators.
+          </Text>
+        )}
       </View>
     </Panel>
   );
+}
+
+/** Whole numbers with thousands separators, as the other screens write counts. */
+function count(n: number): string {
+  return n.toLocaleString('en-US');
 }
 
 function SavePanel({ study }: { study: TransferStudy }) {

@@ -1,7 +1,7 @@
 // Mode estimates of tracks over time: raw ranges, time buckets for long spans (from the rollups,
 // estimate_rollups, where whole rollup buckets fit), one estimate with its shape and source, and the
 // newest estimate of each track with its scan step.
-import { and, asc, desc, eq, getTableColumns, gte, inArray, lte, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, getTableColumns, gte, lte, sql, type SQL } from 'drizzle-orm';
 import type { DbOrTx } from '../client';
 import { analyses, areas, channels, estimateRollups, fits, modeEstimates, modeShapes, modeTracks, ROLLUP_SPANS, scanWindows, sites } from '../schema';
 
@@ -384,65 +384,5 @@ export async function trackIndex(db: DbOrTx): Promise<Map<number, { code: string
   return new Map(rows.map((r) => [r.id, r]));
 }
 
-/**
- * The natural-mode estimates of a track with the corridor transfer and angle of their windows.
- * The analyses' settings are read once per analysis (not carried on every row: a month holds
- * ~40 000 rows and the settings are ~0.6 kB of JSON each).
- */
-export async function studyRows(
-  db: DbOrTx,
-  params: { trackId: number; corridorCode: string; from: Date; to: Date },
-): Promise<
-  {
-    analysisId: number;
-    start: Date;
-    end: Date;
-    settings: Record<string, unknown>;
-    dampingPercent: number;
-    dampingLo: number | null;
-    dampingHi: number | null;
-    forced: boolean;
-    transferMw: number | null;
-    angleDeg: number | null;
-  }[]
-> {
-  const code = params.corridorCode;
-  const rows = await db
-    .select({
-      analysisId: scanWindows.analysisId,
-      start: scanWindows.startTime,
-      end: scanWindows.endTime,
-      dampingPercent: modeEstimates.dampingPercent,
-      dampingLo: modeEstimates.dampingLo,
-      dampingHi: modeEstimates.dampingHi,
-      forced: modeEstimates.forced,
-      transferMw: sql<number | null>`(${scanWindows.transferMw} ->> ${code})::float8`,
-      angleDeg: sql<number | null>`(${scanWindows.angleDeg} ->> ${code})::float8`,
-    })
-    .from(modeEstimates)
-    .innerJoin(scanWindows, eq(scanWindows.id, modeEstimates.windowId))
-    .where(
-      and(
-        eq(modeEstimates.trackId, params.trackId),
-        // a window estimate stands at its window's end, so these bounds only let the
-        // (track_id, at) index narrow the scan to the period
-        gte(modeEstimates.at, params.from),
-        lte(modeEstimates.at, params.to),
-        gte(scanWindows.startTime, params.from),
-        lte(scanWindows.endTime, params.to),
-      ),
-    )
-    .orderBy(asc(scanWindows.startTime), asc(scanWindows.analysisId));
-  const ids = [...new Set(rows.map((r) => r.analysisId))];
-  const settings = new Map<number, Record<string, unknown>>();
-  if (ids.length) {
-    const a = await db.select({ id: analyses.id, settings: analyses.settings }).from(analyses).where(inArray(analyses.id, ids));
-    for (const r of a) settings.set(r.id, r.settings);
-  }
-  return rows.map((r) => ({
-    ...r,
-    settings: settings.get(r.analysisId) ?? {},
-    transferMw: r.transferMw === null ? null : Number(r.transferMw),
-    angleDeg: r.angleDeg === null ? null : Number(r.angleDeg),
-  }));
-}
+/** The transfer study's loader lives with the studies (db/queries/studies.ts); this name stays for the query benchmark. */
+export { studyWindows as studyRows } from './studies';

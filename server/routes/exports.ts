@@ -1,16 +1,20 @@
-// CSV exports: a track's estimates over a period, and a fit's modes per method and channel.
-// RFC 4180 text (standard): comma-separated, CRLF line ends, fields with a comma, quote or line
-// break quoted with doubled quotes. Estimates are written page by page (keyset paging), so a long
-// period never sits in memory whole.
+// CSV exports: a track's estimates over a period, every window of a transfer study's period, and a
+// fit's modes per method and channel. RFC 4180 text (standard): comma-separated, CRLF line ends,
+// fields with a comma, quote or line break quoted with doubled quotes. Estimates are written page by
+// page (keyset paging), study windows a day of window starts at a time, so a long period never sits
+// in memory whole.
 import type { Response } from 'express';
 import { getTrack } from '../../db/queries/alerts';
 import { trackEstimates, latestEstimateAt } from '../../db/queries/estimates';
+import { studyWindowPages } from '../../db/queries/studies';
 import { ESTIMATES_CSV_COLUMNS } from '../../shared/api/estimates';
 import { FIT_CSV_COLUMNS } from '../../shared/api/fits';
+import { STUDY_CSV_COLUMNS } from '../../shared/api/studies';
 import { NotFoundError } from '../errors';
 import { estimateBand } from './analysis-dto';
 import { fitDetail } from './fits';
 import { route, type RouteDef } from './registry';
+import { studySubject } from './studies';
 
 export function csvField(v: string | number | boolean | null | undefined): string {
   if (v === null || v === undefined) return '';
@@ -29,9 +33,18 @@ function startCsv(res: Response, fileName: string): void {
   res.set('Content-Disposition', `attachment; filename="${fileName.replace(/[^A-Za-z0-9._-]/g, '_')}"`);
 }
 
-/** Waits for the socket to drain when the kernel buffer is full (back-pressure). */
+/** Waits for the socket to drain when the kernel buffer is full (back-pressure), or to close (client gone). */
 function write(res: Response, chunk: string): Promise<void> {
-  return res.write(chunk) ? Promise.resolve() : new Promise((resolve) => res.once('drain', () => resolve()));
+  if (res.write(chunk)) return Promise.resolve();
+  return new Promise((resolve) => {
+    const done = () => {
+      res.off('drain', done);
+      res.off('close', done);
+      resolve();
+    };
+    res.on('drain', done);
+    res.on('close', done);
+  });
 }
 
 const PAGE = 5000;
@@ -68,6 +81,27 @@ export function exportRoutes(): RouteDef[] {
         if (rows.length < PAGE) break;
         const last = rows[rows.length - 1];
         after = { at: last.at, id: last.id };
+      }
+      res.end();
+      return undefined;
+    }),
+
+    // Every window of a transfer study's period (the study's answer draws at most a sample of them),
+    // the same windows its figures are computed from; same access rule as running the study.
+    route('studies.transferCsv', async ({ deps, query, res }) => {
+      const { track, corridor } = await studySubject(deps, query.track);
+      const from = new Date(query.from);
+      const to = new Date(query.to);
+      startCsv(res, `keel-transfer-${track.code}-${corridor.code}-${query.from.slice(0, 10)}-${query.to.slice(0, 10)}.csv`);
+      await write(res, csvLine([...STUDY_CSV_COLUMNS]));
+      const iso = (ms: number) => new Date(ms).toISOString();
+      for await (const page of studyWindowPages(deps.db, { trackId: track.id, corridorCode: corridor.code, from, to })) {
+        if (res.destroyed) break; // the client went away: stop reading the period
+        let chunk = '';
+        for (const w of page) {
+          chunk += csvLine([iso(w.startMs), iso(w.endMs), w.transferMw, w.dampingPercent, w.dampingLo, w.dampingHi, w.angleDeg, w.forced, w.analysisId]);
+        }
+        await write(res, chunk);
       }
       res.end();
       return undefined;

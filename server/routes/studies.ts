@@ -1,51 +1,37 @@
 // Transfer studies: run one over a period (admin, engineer, planner), save it, list and read saved ones.
+// The figures cover every window of the period; the answer's points are the bounded display sample
+// (shared/api/studies.ts), and what is saved is that same answer. Every window as CSV:
+// GET /api/studies/transfer.csv (server/routes/exports.ts).
 import { getTrack } from '../../db/queries/alerts';
 import { recordAudit } from '../../db/queries/audit';
-import { studyRows } from '../../db/queries/estimates';
 import { corridorChannelNames } from '../../db/queries/scans';
-import { getStudy, insertStudy, listStudies, type StudyWithNames } from '../../db/queries/studies';
+import { getStudy, insertStudy, listStudies, studyWindows, type SavedStudyListRow } from '../../db/queries/studies';
 import { STUDY_CAUTION, type SavedStudySummary, type TransferStudy } from '../../shared/api/studies';
 import type { Deps } from '../deps';
 import { ConflictError, NotFoundError } from '../errors';
-import { buildTransferStudy, type StudyPoint } from '../studies/transfer';
+import { sampleDisplayPoints } from '../studies/sample';
+import { computeTransferStudy } from '../studies/transfer';
 import { iso } from './analysis-dto';
 import { route, type RouteDef } from './registry';
 
-export async function runTransferStudy(deps: Deps, q: { track: string; from: string; to: string }): Promise<{ study: TransferStudy; trackId: number; corridorId: number }> {
-  const track = await getTrack(deps.db, { code: q.track });
-  if (!track) throw new NotFoundError(`No mode track with code "${q.track}"`);
+/** The track of a study and the corridor it is studied against (404 / 409 when there is none). */
+export async function studySubject(deps: Deps, trackCode: string) {
+  const track = await getTrack(deps.db, { code: trackCode });
+  if (!track) throw new NotFoundError(`No mode track with code "${trackCode}"`);
   const corridor = track.corridorId !== null ? (await corridorChannelNames(deps.db)).find((c) => c.id === track.corridorId) : undefined;
   if (!corridor) throw new ConflictError(`Track "${track.code}" has no corridor to study its damping against; set one in Network`);
+  return { track, corridor };
+}
+
+export async function runTransferStudy(deps: Deps, q: { track: string; from: string; to: string }): Promise<{ study: TransferStudy; trackId: number; corridorId: number }> {
+  const { track, corridor } = await studySubject(deps, q.track);
   const from = new Date(q.from);
   const to = new Date(q.to);
-  const rows = await studyRows(deps.db, { trackId: track.id, corridorCode: corridor.code, from, to });
-  // one estimate per window start: where scans overlap, the newest analysis wins
-  const byStart = new Map<number, (typeof rows)[number]>();
-  for (const r of rows) {
-    const k = r.start.getTime();
-    const prev = byStart.get(k);
-    if (!prev || r.analysisId > prev.analysisId) byStart.set(k, r);
-  }
-  const points: StudyPoint[] = [];
-  for (const r of byStart.values()) {
-    if (r.transferMw === null) continue;
-    const step = (r.settings as { stepSeconds?: unknown }).stepSeconds;
-    points.push({
-      analysisId: r.analysisId,
-      windowStart: r.start.getTime() / 1000,
-      windowSeconds: (r.end.getTime() - r.start.getTime()) / 1000,
-      stepSeconds: typeof step === 'number' ? step : 60,
-      dampingPercent: r.dampingPercent,
-      ciLow: r.dampingLo ?? r.dampingPercent,
-      ciHigh: r.dampingHi ?? r.dampingPercent,
-      transferMw: r.transferMw,
-      angleDeg: r.angleDeg,
-      forced: r.forced,
-    });
-  }
-  points.sort((a, b) => a.windowStart - b.windowStart);
-  const result = buildTransferStudy(points, { poorBelow: track.poorBelow, lowBelow: track.lowBelow });
-  const ci = new Map(points.map((p) => [p.windowStart, p]));
+  // every window of the period, as typed columns; the figures use all of them, the answer's
+  // points only the display sample
+  const w = await studyWindows(deps.db, { trackId: track.id, corridorCode: corridor.code, from, to });
+  const result = computeTransferStudy(w, { poorBelow: track.poorBelow, lowBelow: track.lowBelow });
+  const orNull = (v: number) => (Number.isNaN(v) ? null : v);
   return {
     trackId: track.id,
     corridorId: corridor.id,
@@ -56,20 +42,20 @@ export async function runTransferStudy(deps: Deps, q: { track: string; from: str
       to: iso(to),
       method: result.method,
       confidenceLevel: result.confidenceLevel,
-      points: result.points.map((p) => {
-        const raw = byStart.get(p.windowStart * 1000)!;
-        return {
-          analysisId: p.analysisId,
-          start: iso(raw.start),
-          end: iso(raw.end),
-          transferMw: p.transferMw,
-          dampingPercent: p.dampingPercent,
-          dampingLo: raw.dampingLo,
-          dampingHi: raw.dampingHi,
-          angleDeg: ci.get(p.windowStart)?.angleDeg ?? null,
-          forced: p.forced,
-        };
-      }),
+      points: result.shown.map((i) => ({
+        analysisId: w.analysisId[i],
+        start: iso(new Date(w.startMs[i])),
+        end: iso(new Date(w.endMs[i])),
+        transferMw: w.transferMw[i],
+        dampingPercent: w.dampingPercent[i],
+        dampingLo: orNull(w.dampingLo[i]),
+        dampingHi: orNull(w.dampingHi[i]),
+        angleDeg: orNull(w.angleDeg[i]),
+        forced: w.forced[i] === 1,
+      })),
+      pointsTotal: result.pointsTotal,
+      pointsShown: result.pointsShown,
+      pointsSampled: result.pointsSampled,
       pointsUsed: result.pointsUsed,
       pointsForced: result.pointsForced,
       nEffective: result.nEffective,
@@ -80,20 +66,31 @@ export async function runTransferStudy(deps: Deps, q: { track: string; from: str
   };
 }
 
-function toSavedSummary(s: StudyWithNames): SavedStudySummary {
-  const r = s.study.result as unknown as TransferStudy;
-  const proj = (kind: 'low' | 'poor') => r?.damping?.projections?.find((p) => p.threshold === kind)?.x ?? null;
+/**
+ * A stored answer as the API gives it. Studies saved before answers carried a display sample hold
+ * every window in `points` and no counts: the sample and the counts are made on reading (the
+ * stored row is left as it is).
+ */
+export function storedStudyAnswer(result: Record<string, unknown>): TransferStudy {
+  const r = result as unknown as TransferStudy;
+  if (typeof (result as { pointsTotal?: unknown }).pointsTotal === 'number') return r;
+  const all = Array.isArray(r.points) ? r.points : [];
+  const points = sampleDisplayPoints(all);
+  return { ...r, points, pointsTotal: all.length, pointsShown: points.length, pointsSampled: points.length < all.length };
+}
+
+function toSavedSummary(s: SavedStudyListRow): SavedStudySummary {
   return {
-    id: s.study.id,
-    name: s.study.name,
+    id: s.id,
+    name: s.name,
     trackCode: s.trackCode,
     corridorCode: s.corridorCode,
-    from: iso(s.study.periodFrom),
-    to: iso(s.study.periodTo),
-    createdAt: iso(s.study.createdAt),
-    createdBy: s.study.createdBy !== null && s.createdByName !== null ? { id: s.study.createdBy, displayName: s.createdByName } : null,
-    poorAtMw: proj('poor'),
-    lowAtMw: proj('low'),
+    from: iso(s.periodFrom),
+    to: iso(s.periodTo),
+    createdAt: iso(s.createdAt),
+    createdBy: s.createdBy !== null && s.createdByName !== null ? { id: s.createdBy, displayName: s.createdByName } : null,
+    poorAtMw: s.poorAtMw,
+    lowAtMw: s.lowAtMw,
   };
 }
 
@@ -122,7 +119,7 @@ export function studyRoutes(): RouteDef[] {
     route('studies.get', async ({ deps, params }) => {
       const s = await getStudy(deps.db, { id: params.id });
       if (!s) throw new NotFoundError(`No saved study with id ${params.id}`);
-      return { saved: { ...toSavedSummary(s), result: s.study.result as unknown as TransferStudy } };
+      return { saved: { ...toSavedSummary(s), result: storedStudyAnswer(s.result) } };
     }),
   ];
 }

@@ -4,9 +4,11 @@
 // corridor angle against transfer with the transfer at the 45° practical limit (common practice:
 // a steady-state angle of about 45° across a corridor, against the 90° of the lossless curve).
 //
-// Points are the track's natural-mode estimates (forced ones are left out: they say nothing about
-// the mode's damping) in windows where the corridor transfer is known.
-import { confidenceBand, fitLine, inversePrediction, StudyInputError, type BandPoint, type InversePrediction, type LineFit } from './regression';
+// The fits use the track's natural-mode estimates (forced ones are left out: they say nothing about
+// the mode's damping) in windows where the corridor transfer is known — every one of the period's
+// windows, however many. Only the points drawn are a bounded display sample (./sample.ts).
+import { confidenceBand, fitLineColumns, inversePrediction, StudyInputError, type BandPoint, type InversePrediction, type LineFit } from './regression';
+import { displaySampleIndices, type DisplaySampleOptions } from './sample';
 
 export const PRACTICAL_ANGLE_LIMIT_DEG = 45;
 
@@ -15,14 +17,47 @@ export interface StudyPoint {
   /** Window start, epoch seconds. */
   windowStart: number;
   windowSeconds: number;
-  stepSeconds: number;
+  /** Not used by the computation (kept for callers that carry it). */
+  stepSeconds?: number;
   dampingPercent: number;
-  ciLow: number;
-  ciHigh: number;
+  /** Not used by the computation (kept for callers that carry them). */
+  ciLow?: number;
+  ciHigh?: number;
   transferMw: number;
   /** From-end minus to-end angle, degrees; null when an angle channel is missing. */
   angleDeg: number | null;
   forced: boolean;
+}
+
+/**
+ * A study's windows as parallel columns (index i is one window, oldest first): what the database
+ * loader gives (db/queries/studies.ts), with no object per window.
+ */
+export interface StudyColumns {
+  length: number;
+  analysisId: ArrayLike<number>;
+  /** Window start, epoch seconds. */
+  windowStart: ArrayLike<number>;
+  windowSeconds: ArrayLike<number>;
+  dampingPercent: ArrayLike<number>;
+  transferMw: ArrayLike<number>;
+  /** Degrees; NaN where an angle channel is missing. */
+  angleDeg: ArrayLike<number>;
+  /** 1 for a forced-oscillation window, 0 for a natural mode. */
+  forced: ArrayLike<number>;
+}
+
+export function columnsOfPoints(points: readonly StudyPoint[]): StudyColumns {
+  return {
+    length: points.length,
+    analysisId: points.map((p) => p.analysisId),
+    windowStart: points.map((p) => p.windowStart),
+    windowSeconds: points.map((p) => p.windowSeconds),
+    dampingPercent: points.map((p) => p.dampingPercent),
+    transferMw: points.map((p) => p.transferMw),
+    angleDeg: points.map((p) => p.angleDeg ?? NaN),
+    forced: points.map((p) => (p.forced ? 1 : 0)),
+  };
 }
 
 /**
@@ -31,13 +66,22 @@ export interface StudyPoint {
  * window + 1 independent windows, capped by its count.
  */
 export function effectiveSampleSize(points: readonly Pick<StudyPoint, 'analysisId' | 'windowStart' | 'windowSeconds'>[]): number {
+  return effectiveSampleSizeOf(
+    { analysisId: points.map((p) => p.analysisId), windowStart: points.map((p) => p.windowStart), windowSeconds: points.map((p) => p.windowSeconds) },
+    Array.from({ length: points.length }, (_, i) => i),
+  );
+}
+
+/** effectiveSampleSize of the windows at `indices` of the columns. */
+export function effectiveSampleSizeOf(c: Pick<StudyColumns, 'analysisId' | 'windowStart' | 'windowSeconds'>, indices: ArrayLike<number>): number {
   const groups = new Map<number, { first: number; last: number; count: number; window: number }>();
-  for (const p of points) {
-    const g = groups.get(p.analysisId);
-    if (!g) groups.set(p.analysisId, { first: p.windowStart, last: p.windowStart, count: 1, window: p.windowSeconds });
+  for (let k = 0; k < indices.length; k++) {
+    const i = indices[k];
+    const g = groups.get(c.analysisId[i]);
+    if (!g) groups.set(c.analysisId[i], { first: c.windowStart[i], last: c.windowStart[i], count: 1, window: c.windowSeconds[i] });
     else {
-      g.first = Math.min(g.first, p.windowStart);
-      g.last = Math.max(g.last, p.windowStart);
+      g.first = Math.min(g.first, c.windowStart[i]);
+      g.last = Math.max(g.last, c.windowStart[i]);
       g.count++;
     }
   }
@@ -58,10 +102,14 @@ export interface FitSummary {
   confidenceLevel: number;
 }
 
-export interface TransferStudyResult {
+interface StudyFigures {
   method: 'ols-fieller';
   confidenceLevel: number;
-  points: StudyPoint[];
+  /** Windows of the study (all of them, forced included). */
+  pointsTotal: number;
+  /** Windows in the display sample, and whether it is a sample (pointsShown < pointsTotal). */
+  pointsShown: number;
+  pointsSampled: boolean;
   pointsUsed: number;
   pointsForced: number;
   nEffective: number;
@@ -80,6 +128,24 @@ export interface TransferStudyResult {
     atLimit: InversePrediction | null;
     note: string | null;
   };
+}
+
+/** The study over columns: every figure over all windows, and the display sample as indices. */
+export interface TransferStudyCore extends StudyFigures {
+  /** The display sample (shared/api/studies.ts): ascending indices into the columns. */
+  shown: number[];
+}
+
+/** The study over a list of points: every figure over all of them, `points` the display sample. */
+export interface TransferStudyResult extends StudyFigures {
+  points: StudyPoint[];
+}
+
+export interface TransferStudyOptions {
+  /** Two-sided confidence level of every band and interval (default 0.95). */
+  confidenceLevel?: number;
+  /** Size and bins of the display sample (defaults in shared/api/studies.ts). */
+  sample?: DisplaySampleOptions;
 }
 
 function summary(f: LineFit): FitSummary {
@@ -116,26 +182,51 @@ function clampEffective(nEff: number, n: number): number {
 export function buildTransferStudy(
   allPoints: readonly StudyPoint[],
   thresholds: { poorBelow: number; lowBelow: number },
-  options: { confidenceLevel?: number } = {},
+  options: TransferStudyOptions = {},
 ): TransferStudyResult {
+  const { shown, ...figures } = computeTransferStudy(columnsOfPoints(allPoints), thresholds, options);
+  return { ...figures, points: shown.length === allPoints.length ? [...allPoints] : shown.map((i) => allPoints[i]) };
+}
+
+export function computeTransferStudy(
+  c: StudyColumns,
+  thresholds: { poorBelow: number; lowBelow: number },
+  options: TransferStudyOptions = {},
+): TransferStudyCore {
   const level = options.confidenceLevel ?? 0.95;
-  const used = allPoints.filter((p) => !p.forced && Number.isFinite(p.transferMw) && Number.isFinite(p.dampingPercent));
-  const nEffRaw = effectiveSampleSize(used);
-  const result: TransferStudyResult = {
+  const n = c.length;
+  // natural-mode windows with finite readings, in order (the fits' points)
+  const used: number[] = [];
+  let forced = 0;
+  for (let i = 0; i < n; i++) {
+    if (c.forced[i]) forced++;
+    else if (Number.isFinite(c.transferMw[i]) && Number.isFinite(c.dampingPercent[i])) used.push(i);
+  }
+  const shown = displaySampleIndices({ length: n, transferMw: c.transferMw, dampingPercent: c.dampingPercent, forced: c.forced }, options.sample);
+  const nEffRaw = effectiveSampleSizeOf(c, used);
+  const result: TransferStudyCore = {
     method: 'ols-fieller',
     confidenceLevel: level,
-    points: [...allPoints],
+    pointsTotal: n,
+    pointsShown: shown.length,
+    pointsSampled: shown.length < n,
+    shown,
     pointsUsed: used.length,
-    pointsForced: allPoints.filter((p) => p.forced).length,
+    pointsForced: forced,
     nEffective: nEffRaw,
     damping: { fit: null, line: [], projections: [], note: null },
     angle: { fit: null, line: [], limitDeg: PRACTICAL_ANGLE_LIMIT_DEG, atLimit: null, note: null },
   };
+  const column = (values: ArrayLike<number>, at: readonly number[]) => {
+    const out = new Float64Array(at.length);
+    for (let k = 0; k < at.length; k++) out[k] = values[at[k]];
+    return out;
+  };
   try {
-    const f = fitLine(
-      used.map((p) => ({ x: p.transferMw, y: p.dampingPercent })),
-      { confidenceLevel: level, nEffective: clampEffective(nEffRaw, used.length) },
-    );
+    const f = fitLineColumns(column(c.transferMw, used), column(c.dampingPercent, used), {
+      confidenceLevel: level,
+      nEffective: clampEffective(nEffRaw, used.length),
+    });
     const proj = [
       { ...inversePrediction(f, thresholds.lowBelow), threshold: 'low' as const },
       { ...inversePrediction(f, thresholds.poorBelow), threshold: 'poor' as const },
@@ -150,13 +241,13 @@ export function buildTransferStudy(
     if (!(err instanceof StudyInputError)) throw err;
     result.damping.note = err.message;
   }
-  const withAngle = used.filter((p) => p.angleDeg !== null && Number.isFinite(p.angleDeg));
+  const withAngle = used.filter((i) => Number.isFinite(c.angleDeg[i]));
   try {
-    const nEffA = effectiveSampleSize(withAngle);
-    const f = fitLine(
-      withAngle.map((p) => ({ x: p.transferMw, y: p.angleDeg as number })),
-      { confidenceLevel: level, nEffective: clampEffective(nEffA, withAngle.length) },
-    );
+    const nEffA = effectiveSampleSizeOf(c, withAngle);
+    const f = fitLineColumns(column(c.transferMw, withAngle), column(c.angleDeg, withAngle), {
+      confidenceLevel: level,
+      nEffective: clampEffective(nEffA, withAngle.length),
+    });
     const atLimit = inversePrediction(f, PRACTICAL_ANGLE_LIMIT_DEG);
     result.angle = {
       fit: summary(f),

@@ -1,7 +1,8 @@
 // Catalogue entries of the analysis part of the API (scans, fits, Watch, trends, alerts, transfer
 // studies, live events), spread into ENDPOINTS (./endpoints.ts). Order matters where two paths
-// overlap: a literal path ('/api/studies/transfer', '/api/fits/:id.csv') comes before its
-// parameter sibling, and the server mounts routes in the order of server/routes/analysis-routes.ts.
+// overlap: a literal path ('/api/studies/transfer', '/api/studies/transfer.csv', '/api/fits/:id.csv')
+// comes before its parameter sibling, and the server mounts routes in the order of
+// server/routes/analysis-routes.ts.
 //
 // Endpoints answering something other than JSON (text/csv, text/event-stream) declare
 // `response: z.undefined()`: their handlers write the body themselves.
@@ -54,6 +55,7 @@ export const ANALYSIS_ENDPOINTS = {
   'alerts.acknowledge': e({ method: 'POST', path: '/api/alerts/:id/acknowledge', access: 'acknowledgeAlert', status: 200, summary: 'Acknowledge an alert with a note', params: alertIdParamsSchema, body: acknowledgeBodySchema, response: alertResponseSchema }),
 
   // transfer studies
+  'studies.transferCsv': e({ method: 'GET', path: '/api/studies/transfer.csv', access: 'runStudy', status: 200, summary: "Every window of a transfer study's period as CSV (the study's answer draws a sample of them)", query: transferStudyQuerySchema, response: raw }),
   'studies.transfer': e({ method: 'GET', path: '/api/studies/transfer', access: 'runStudy', status: 200, summary: "Run a transfer study of a track's damping against its corridor's MW", query: transferStudyQuerySchema, response: transferStudyResponseSchema }),
   'studies.save': e({ method: 'POST', path: '/api/studies', access: 'runStudy', status: 201, summary: 'Run a transfer study and save it', body: studySaveBodySchema, response: savedStudyResponseSchema }),
   'studies.list': e({ method: 'GET', path: '/api/studies', access: 'view', status: 200, summary: 'Saved transfer studies, newest first', response: savedStudiesResponseSchema }),

@@ -1,10 +1,35 @@
 // Transfer study: a track's damping against its corridor's transfer over a period.
 //
 // GET  /api/studies/transfer?track&from&to   (runStudy: admin, engineer, planner) → { study }
+// GET  /api/studies/transfer.csv?track&from&to (runStudy) → text/csv: EVERY window of the period,
+//      streamed from the database (STUDY_CSV_COLUMNS), whatever the answer above shows
 // POST /api/studies { name, track, from, to } (runStudy)  → 201 { saved }: runs it again on the
-//      server and stores the result (what was computed is what is saved)
+//      server and stores the result (what was computed is what is saved: the same answer as the
+//      GET, display sample included, so a saved 90-day study stays small)
 // GET  /api/studies                           (view) → { studies } (saved, newest first, no points)
-// GET  /api/studies/:id                       (view) → { saved } with the whole result
+// GET  /api/studies/:id                       (view) → { saved } with the whole result (a study
+//      saved before answers were sampled holds every window: it is sampled, and counted, on reading)
+//
+// The windows of a study: the track's estimates in the period whose scan window carries the
+// corridor's transfer, one per window start (where scans overlap, the newest analysis wins).
+// Every statistic below (pointsUsed, pointsForced, nEffective, both fits, projections) is computed
+// over ALL of them. `points` is only what the scatter draws:
+//
+// Display sample (`points`): at most STUDY_MAX_POINTS windows. When the period has that many or
+// fewer, `points` is every window, in time order, exactly as stored. Otherwise the windows are
+// chosen deterministically (the same data always give the same sample), stratified so the scatter
+// looks like the whole cloud:
+//   1. the transfer range [min, max] MW is cut into STUDY_SAMPLE_BINS equal bins;
+//   2. always kept: in each bin, the natural (not forced) window with the LOWEST damping and the
+//      one with the highest (ties: the earlier window; a bin of forced windows only: among those)
+//      — so the lowest-damped window at every transfer level, what a planner looks for, is never
+//      dropped — and the windows at the lowest and the highest transfer of the period;
+//   3. the rest of the budget is shared among the bins in proportion to their remaining windows
+//      (largest remainders, ties to the lower bin); within a bin the windows are ranked by damping
+//      and taken at evenly spaced ranks, so each bin's spread of damping is kept;
+//   4. the chosen windows are sent in time order.
+// `pointsTotal` counts every window, `pointsShown` = points.length, `pointsSampled` says whether
+// points is a sample (pointsShown < pointsTotal).
 //
 // Method ('ols-fieller'): ordinary least squares of damping (%) on corridor MW over the track's
 // natural-mode window estimates; confidence band of the mean line; the MW at which the line
@@ -22,6 +47,24 @@ import { idSchema, isoDateTime } from './common';
 
 export const STUDY_CAUTION =
   'Advisory. A transfer study is reviewed by a qualified engineer before it changes any operating limit.';
+
+/** Most windows an answer's `points` holds (the display sample; see above). */
+export const STUDY_MAX_POINTS = 2000;
+/** Transfer bins of the display sample. */
+export const STUDY_SAMPLE_BINS = 40;
+
+/** Columns of GET /api/studies/transfer.csv: one row per window of the study, oldest first. */
+export const STUDY_CSV_COLUMNS = [
+  'window_start_utc',
+  'window_end_utc',
+  'transfer_mw',
+  'damping_percent',
+  'damping_lo_percent',
+  'damping_hi_percent',
+  'corridor_angle_deg',
+  'forced',
+  'analysis_id',
+] as const;
 
 const time = (what: string) => z.iso.datetime({ offset: true, error: `${what} must be an ISO-8601 date-time with a zone` });
 
@@ -84,8 +127,17 @@ export const transferStudySchema = z.object({
   to: isoDateTime,
   method: z.literal('ols-fieller'),
   confidenceLevel: z.number(),
-  points: z.array(studyPointSchema),
+  /** The display sample: every window when pointsTotal ≤ STUDY_MAX_POINTS (see above). */
+  points: z.array(studyPointSchema).max(STUDY_MAX_POINTS),
+  /** Windows of the period (every one of them is in the CSV export). */
+  pointsTotal: z.number().int().nonnegative(),
+  /** points.length. */
+  pointsShown: z.number().int().nonnegative(),
+  /** points is a sample of the windows (pointsShown < pointsTotal). */
+  pointsSampled: z.boolean(),
+  /** Natural-mode windows in the fits (of pointsTotal). */
   pointsUsed: z.number().int(),
+  /** Forced-oscillation windows left out of the fits (of pointsTotal). */
   pointsForced: z.number().int(),
   nEffective: z.number(),
   damping: z.object({
@@ -105,6 +157,11 @@ export const transferStudySchema = z.object({
     note: z.string().nullable(),
   }),
   caution: z.string(),
+}).superRefine((s, ctx) => {
+  // the counts describe `points`; a mismatch would mislabel the sample on screen
+  if (s.pointsShown !== s.points.length) ctx.addIssue({ code: 'custom', path: ['pointsShown'], message: `pointsShown (${s.pointsShown}) must equal the number of points (${s.points.length})` });
+  if (s.pointsShown > s.pointsTotal) ctx.addIssue({ code: 'custom', path: ['pointsShown'], message: `pointsShown (${s.pointsShown}) must not exceed pointsTotal (${s.pointsTotal})` });
+  if (s.pointsSampled !== s.pointsShown < s.pointsTotal) ctx.addIssue({ code: 'custom', path: ['pointsSampled'], message: 'pointsSampled must be true exactly when pointsShown < pointsTotal' });
 });
 export type TransferStudy = z.infer<typeof transferStudySchema>;
 

@@ -5,7 +5,9 @@
 // transfer study shows the projected transfer at 3 % damping exactly as the server computed it,
 // within 15 % of the simulator's true crossing (the simulator's known eigenvalues, as in
 // tests/integration/transfer-study.test.ts), with the caution; the planner saves it and the CSV
-// export holds one row per window.
+// export (the server's, GET /api/studies/transfer.csv) holds one row per window. Over a long
+// period (three days of generated scan results, scripts/bench/fill-year.ts, more windows than an
+// answer carries) the scatter draws a sample and says so under the chart.
 //
 // Data: six 30-minute Tarrow recordings at 600…3000 MW Highmoor–Saltreach transfer, half an hour
 // apart, the last ending an hour ago — simulated, stored and scanned by the stack's worker
@@ -14,6 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { transferAtDampingPercent } from '../../modal/simulator';
 import { goToSection, shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
 import { DEMO_PASSWORD, ROLE_EMAIL } from '../helpers/fixtures';
+import { fillEstimates } from '../../scripts/bench/fill-year';
 import { seedAmbientScenario } from '../helpers/scenario';
 import { startStack, type Stack } from '../helpers/stack';
 
@@ -126,12 +129,21 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         expect(chartText).toEqual(expect.arrayContaining(['3.0 % poor', '5.0 % low', `3.0 % at ${Math.round(poor.x)} MW`]));
         expect(await page.getByTestId('study-angle-chart').locator('text').allTextContents()).toEqual(expect.arrayContaining(['45° practical limit']));
 
-        // Export: one CSV row per window of the study.
-        const href = await page.getByRole('link', { name: /^Download the \d+ windows of this study as CSV$/ }).getAttribute('href');
-        expect(href).toMatch(/^data:text\/csv/);
-        const csv = decodeURIComponent(href!.slice(href!.indexOf(',') + 1)).trim().split('\r\n');
+        // Every window is drawn (a few hundred: no sample, so no note under the chart).
+        expect(study.pointsSampled).toBe(false);
+        expect(study.points.length).toBe(study.pointsTotal);
+        expect(await page.getByTestId('study-sample-note').count()).toBe(0);
+
+        // Export: the server's CSV of the study's period, one row per window of the study.
+        const href = await page.getByRole('link', { name: `Download the ${study.pointsTotal} windows of this study as CSV` }).getAttribute('href');
+        expect(href).toMatch(/^\/api\/studies\/transfer\.csv\?track=north-south&from=.+&to=.+$/);
+        const res = await page.request.get(`${stack.baseUrl}${href}`);
+        expect(res.status()).toBe(200);
+        expect(res.headers()['content-type']).toContain('text/csv');
+        const csv = (await res.text()).trim().split('\r\n');
         expect(csv[0]).toBe('window_start_utc,window_end_utc,transfer_mw,damping_percent,damping_lo_percent,damping_hi_percent,corridor_angle_deg,forced,analysis_id');
         expect(csv.length - 1).toBe(study.points.length);
+        expect(csv.slice(1).map((l) => l.split(',')[0])).toEqual(study.points.map((p: { start: string }) => p.start));
         await shotWhole(b, 'transfer');
 
         // Save (planners may run and save a study).
@@ -150,3 +162,44 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
     }, 90_000);
   });
 }
+
+describe('planner at wide, over a long period', () => {
+  it('draws a sample of the windows and says so under the chart; the CSV still holds every window', async () => {
+    // Three days of generated scan results ending ten days ago, outside every other check's period.
+    const endDay = Math.floor(Date.now() / 86_400_000) * 86_400 - 10 * 86_400;
+    await fillEstimates(stack.pool, { days: 3, endDay, seed: 31, alerts: false });
+    const day = (s: number) => new Date(s * 1000).toISOString().slice(0, 10);
+    const b = await openBrowser(SUITE, 'wide');
+    try {
+      const { page } = b;
+      await signIn(b, 'planner');
+      await goToSection(b, 'Transfer study');
+      await page.getByTestId('projection-poor-mw').waitFor({ timeout: 20_000 });
+      await page.getByLabel('From (UTC date)').fill(day(endDay - 3 * 86_400));
+      await page.getByLabel('To (UTC date)').fill(day(endDay - 86_400));
+      const run = page.waitForResponse((r) => r.url().includes(`/api/studies/transfer?`) && r.url().includes(`from=${day(endDay - 3 * 86_400)}`) && r.status() === 200);
+      await page.getByRole('button', { name: 'Use these dates' }).click();
+      const { study } = await (await run).json();
+      expect(study.pointsTotal).toBeGreaterThan(4000);
+      expect(study.points).toHaveLength(2000);
+      expect(study.pointsSampled).toBe(true);
+
+      const note = page.getByTestId('study-sample-note');
+      await note.waitFor({ timeout: 20_000 });
+      const total = study.pointsTotal.toLocaleString('en-US');
+      expect(await note.innerText()).toMatch(new RegExp(`^Showing 2,000 of ${total} windows .*; the fitted line and the projections use all ${total}\\.$`));
+      expect(await page.getByTestId('study-damping-chart').getAttribute('aria-label')).toContain(`: ${study.pointsUsed} scan windows from `);
+      expect(await page.getByTestId('study-damping-chart').getAttribute('aria-label')).toContain(', 2000 of them drawn.');
+      await shotWhole(b, 'transfer-sampled');
+
+      const href = await page.getByRole('link', { name: `Download the ${study.pointsTotal} windows of this study as CSV` }).getAttribute('href');
+      const res = await page.request.get(`${stack.baseUrl}${href}`);
+      expect(res.status()).toBe(200);
+      const lines = (await res.text()).trim().split('\r\n');
+      expect(lines.length - 1).toBe(study.pointsTotal);
+      expect(b.errors, b.errors.join('\n')).toEqual([]);
+    } finally {
+      await b.close();
+    }
+  }, 120_000);
+});
