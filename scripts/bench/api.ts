@@ -6,8 +6,10 @@
 //   3. the server (`server/main.ts`) with NODE_ENV=production, as deployed: it skips the check of
 //      every answer against its response schema (server/config.ts). Measured one request at a time
 //      on the filled year, that check made no difference beyond the noise (Watch, Trends and the
-//      7-day study alike), so development mode gives the same figures. Signed in as the demo
-//      planner (cookie session, as the browser);
+//      7-day study alike), so development mode gives the same figures. As deployed, Watch, Trends
+//      and the study go through the server's read cache (server/read-cache.ts: entries ≤ 1 s old),
+//      so clients asking for the same answer share one computation a second; --read-cache-ms 0
+//      shows the cost without it. Signed in as the demo planner (cookie session, as the browser);
 //   4. for each endpoint, autocannon with 50 connections on loopback for --duration seconds (after
 //      a short warm-up): p50 / p95 / p99 latency from every response, requests/s, errors
 //      (non-2xx, socket errors, timeouts), PASS/FAIL against the targets.
@@ -24,6 +26,8 @@
 //                         --pg-data DIR: its cluster's data folder, for PostgreSQL's CPU figure)
 //                        [--server-root DIR]                    (run another checkout's server)
 //                        [--node-env production|development]
+//                        [--read-cache-ms N]                    (the server's READ_CACHE_MS; 0: every
+//                         request reads the database, to see what the cache saves)
 import os from 'node:os';
 import { parseArgs } from 'node:util';
 import autocannon from 'autocannon';
@@ -42,6 +46,7 @@ const { values: args } = parseArgs({
     'redis-url': { type: 'string' },
     'server-root': { type: 'string' },
     'node-env': { type: 'string' },
+    'read-cache-ms': { type: 'string' },
     'pg-data': { type: 'string' },
   },
 });
@@ -115,7 +120,15 @@ async function main() {
     if (!latest) throw new Error('the database holds no north–south estimates');
 
     const port = await freePort();
-    const env = stackEnv({ databaseUrl: svc.databaseUrl, redisUrl: svc.redisUrl, port, prefix: `keel-bench-${process.pid}`, nodeEnv });
+    const readCacheMs = args['read-cache-ms'] ?? '1000';
+    const env = stackEnv({
+      databaseUrl: svc.databaseUrl,
+      redisUrl: svc.redisUrl,
+      port,
+      prefix: `keel-bench-${process.pid}`,
+      nodeEnv,
+      extra: { READ_CACHE_MS: readCacheMs },
+    });
     server = await startServer(env, serverRoot);
     const base = `http://127.0.0.1:${port}`;
     const planner = DEMO_PEOPLE.find((p) => p.role === 'planner')!;
@@ -145,7 +158,7 @@ async function main() {
     }
     const serverPid = scriptPid(server.child.pid!);
     console.log(
-      `\n${counts.e.toLocaleString('en')} mode estimates, ${counts.a} alerts; server NODE_ENV=${nodeEnv} from ${serverRoot}; ${connections} connections × ${duration} s per endpoint`,
+      `\n${counts.e.toLocaleString('en')} mode estimates, ${counts.a} alerts; server NODE_ENV=${nodeEnv} READ_CACHE_MS=${readCacheMs} from ${serverRoot}; ${connections} connections × ${duration} s per endpoint`,
     );
     const rows: Row[] = [];
     for (const e of endpoints) {

@@ -9,10 +9,11 @@ import { getStudy, insertStudy, listStudies, studyWindows, type SavedStudyListRo
 import { STUDY_CAUTION, type SavedStudySummary, type TransferStudy } from '../../shared/api/studies';
 import type { Deps } from '../deps';
 import { ConflictError, NotFoundError } from '../errors';
+import { readCache } from '../events/live';
 import { sampleDisplayPoints } from '../studies/sample';
 import { computeTransferStudy } from '../studies/transfer';
 import { iso } from './analysis-dto';
-import { route, type RouteDef } from './registry';
+import { JsonAnswer, route, type RouteDef } from './registry';
 
 /** The track of a study and the corridor it is studied against (404 / 409 when there is none). */
 export async function studySubject(deps: Deps, trackCode: string) {
@@ -96,7 +97,11 @@ function toSavedSummary(s: SavedStudyListRow): SavedStudySummary {
 
 export function studyRoutes(): RouteDef[] {
   return [
-    route('studies.transfer', async ({ deps, query }) => ({ study: (await runTransferStudy(deps, query)).study })),
+    // Stored rows only (no clock): planners opening the screen ask for the same hour-rounded
+    // period, so concurrent runs share one computation through the read cache.
+    route('studies.transfer', ({ deps, query }) =>
+      readCache(deps).get(`study:${query.track}:${query.from}:${query.to}`, async () => new JsonAnswer({ study: (await runTransferStudy(deps, query)).study })),
+    ),
 
     route('studies.save', async ({ deps, body, person, ip }) => {
       const run = await runTransferStudy(deps, body);
