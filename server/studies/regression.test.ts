@@ -6,7 +6,7 @@ import { spawnSync } from 'node:child_process';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { createRng } from '@/modal/random';
 import { confidenceBand, fitLine, inversePrediction, meanSe, StudyInputError, type XY } from './regression';
-import { incompleteBeta, studentTCdf, studentTQuantile } from './stats';
+import { incompleteBeta, studentTCdf, studentTQuantile } from '../../modal/student-t';
 
 function line(n: number, a: number, b: number, noise: number, seed: number, x0 = 500, x1 = 1800): XY[] {
   const rng = createRng(seed);

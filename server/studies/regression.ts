@@ -13,7 +13,7 @@
 // above is multiplied by κ = n/nEffective and the t quantile uses nEffective − 2 degrees of freedom
 // (a design-effect correction, stated as an approximation: it assumes the correlation is the same
 // along the whole line).
-import { studentTQuantile } from './stats';
+import { studentTQuantile } from '../../modal/student-t';
 
 export interface XY {
   x: number;

@@ -1,4 +1,5 @@
-// Student's t distribution for regression intervals (no statistics package is installed).
+// Student's t distribution: the ambient estimator's confidence intervals and the transfer study's
+// regression intervals (one implementation for both; pure TypeScript, as everything in modal/).
 //
 // Regularized incomplete beta I_x(a, b) by its continued fraction evaluated with the modified Lentz
 // method, and ln Γ by the Lanczos approximation (g = 7, 9 terms) — textbook: Press et al.,
