@@ -7,7 +7,7 @@
 // (DESIGN.md §5.3: editing the network is for admins and engineers).
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { goToSection, openBrowser, shotWhole, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { goToSection, openBrowser, shotWhole, type BrowserSession, type ViewportName, signInAs, expectNoErrors } from '../helpers/browser';
 import { DEMO_PASSWORD, ROLE_EMAIL, rowCounts } from '../helpers/fixtures';
 import { startStack, type Stack } from '../helpers/stack';
 
@@ -21,20 +21,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await stack?.stop();
 });
-
-async function signIn(b: BrowserSession, role: keyof typeof ROLE_EMAIL): Promise<void> {
-  const { page } = b;
-  await page.goto(`${stack.baseUrl}/`);
-  await page.getByLabel('Email').fill(ROLE_EMAIL[role]);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Watch', level: 1 }).waitFor({ timeout: 20_000 });
-}
-
-function expectNoErrors(b: BrowserSession, where: string): void {
-  const server = b.errors.length ? `\nlast server lines:\n${stack.logs.slice(-25).join('\n')}` : '';
-  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}${server}`).toEqual([]);
-}
 
 /** One record in the list, whether drawn as a table row (wide) or a card (phone). */
 function listed(page: Page, kind: string, name: string) {
@@ -64,7 +50,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         page.on('response', (r) => {
           if (r.status() >= 500) b.errors.push(`HTTP ${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
         });
-        await signIn(b, 'engineer');
+        await signInAs(b, stack.baseUrl, ROLE_EMAIL.engineer, DEMO_PASSWORD);
         b.errors.length = 0;
 
         await goToSection(b, 'Network');
@@ -100,7 +86,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         );
         expect(stored.rows).toEqual([{ name: siteName, kv: 345, x: 82, y: 47, area: 'eastfell' }]);
         await shotWhole(b, 'site-added');
-        expectNoErrors(b, 'adding a site');
+        expectNoErrors(b, 'adding a site', stack.logs);
 
         // 2. East–west: poor below 2.5 %, low below 6 %.
         await openKind(page, 'tracks', 'Mode tracks');
@@ -125,7 +111,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
           action: 'network.update',
           details: { changed: { poorBelow: { from: 3, to: 2.5 }, lowBelow: { from: 5, to: 6 } } },
         });
-        expectNoErrors(b, 'changing the thresholds');
+        expectNoErrors(b, 'changing the thresholds', stack.logs);
 
         // 3a. Poor above low: the form stops it with the shared schema's words and sends nothing.
         const patches: string[] = [];
@@ -170,7 +156,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await shotWhole(b, 'track-refused');
         // A refused edit is not an app error: the browser's own line about the 409 is expected.
         b.errors.splice(0, b.errors.length, ...b.errors.filter((e) => !/status of 409/.test(e)));
-        expectNoErrors(b, 'the refused edit');
+        expectNoErrors(b, 'the refused edit', stack.logs);
         await trackForm.getByRole('button', { name: 'Cancel' }).click();
         await page.waitForURL('**/network/tracks');
         expect(await listed(page, 'tracks', 'East–west').count()).toBe(1);
@@ -189,7 +175,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         const siteAudit = await stack.pool.query(`select action from audit_log where target = $1 order by id`, [`site:${siteCode}`]);
         expect(siteAudit.rows.map((r) => r.action)).toEqual(['network.create', 'network.delete']);
         await shotWhole(b, 'site-deleted');
-        expectNoErrors(b, 'deleting the site');
+        expectNoErrors(b, 'deleting the site', stack.logs);
       } finally {
         await b.close();
       }
@@ -201,7 +187,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
       const b = await openBrowser(SUITE, viewport);
       try {
         const { page } = b;
-        await signIn(b, 'operator');
+        await signInAs(b, stack.baseUrl, ROLE_EMAIL.operator, DEMO_PASSWORD);
         b.errors.length = 0;
         await goToSection(b, 'Network');
         await page.getByRole('heading', { name: 'Network', level: 1 }).waitFor({ timeout: 20_000 });
@@ -229,7 +215,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await page.goto(`${stack.baseUrl}/network/sites/new`);
         await page.getByText('Only administrators and engineers change the network.').waitFor({ timeout: 20_000 });
         expect(await page.getByTestId('network-form').count()).toBe(0);
-        expectNoErrors(b, 'the read-only screen');
+        expectNoErrors(b, 'the read-only screen', stack.logs);
       } finally {
         await b.close();
       }

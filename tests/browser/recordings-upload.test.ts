@@ -11,7 +11,7 @@ import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { writeCsv } from '../../modal/formats/csv';
 import { buildTarrowModel, simulateAmbient } from '../../modal/simulator';
-import { shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { shotWhole, openBrowser, type BrowserSession, type ViewportName, signInAs, expectNoErrors } from '../helpers/browser';
 import { startStack, type Stack } from '../helpers/stack';
 
 const PASSWORD = 'tarrow-demo-2026';
@@ -63,30 +63,10 @@ function backwardsFile(): { file: string; name: string } {
   return { file, name };
 }
 
-async function signIn(page: Page): Promise<void> {
-  await page.goto(`${stack.baseUrl}/`);
-  await page.getByLabel('Email').fill('engineer@tarrow.example');
-  await page.getByLabel('Password').fill(PASSWORD);
-  // Sign-in lands on Watch; let its first answer arrive, so what follows is this suite's screens.
-  const watch = page.waitForResponse((r) => new URL(r.url()).pathname === '/api/watch', { timeout: 15_000 }).catch(() => null);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).waitFor({ timeout: 20_000 });
-  await watch;
-  // The browser logs a failed request a moment after its answer: let that land before the
-  // caller starts counting.
-  await page.waitForTimeout(500);
-}
-
-
 async function pickFile(page: Page, file: string): Promise<void> {
   const chooser = page.waitForEvent('filechooser');
   await page.getByRole('button', { name: /Choose (a|another) recording file/ }).click();
   await (await chooser).setFiles(file);
-}
-
-function expectNoErrors(b: BrowserSession, where: string): void {
-  const server = b.errors.length ? `\nlast server lines:\n${stack.logs.slice(-25).join('\n')}` : '';
-  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}${server}`).toEqual([]);
 }
 
 for (const viewport of ['phone', 'wide'] as ViewportName[]) {
@@ -99,7 +79,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         page.on('response', (r) => {
           if (r.status() >= 500) b.errors.push(`HTTP ${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
         });
-        await signIn(page);
+        await signInAs(b, stack.baseUrl, 'engineer@tarrow.example', PASSWORD, { settle: true });
         // Errors of the sign-in screen are not this suite's; every screen from here on is.
         b.errors.length = 0;
         await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).click();
@@ -111,7 +91,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         } else {
           await page.getByTestId('recordings-list').waitFor();
         }
-        expectNoErrors(b, 'Recordings');
+        expectNoErrors(b, 'Recordings', stack.logs);
 
         // 1. A refused file: the message on screen is the server's, word for word.
         const bad = backwardsFile();
@@ -130,7 +110,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await shotWhole(b, 'upload-refused');
         // A refused upload is not an app error: the browser's own line about the 400 is expected.
         b.errors.splice(0, b.errors.length, ...b.errors.filter((e) => !/status of 400/.test(e)));
-        expectNoErrors(b, 'the refused upload');
+        expectNoErrors(b, 'the refused upload', stack.logs);
 
         // 2. The ambient recording: one column the network does not know.
         const seed = viewport === 'phone' ? 31 : 32;
@@ -180,7 +160,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         expect(await progress.getAttribute('aria-valuetext')).toBe('100 %: Ready');
         await page.getByText(`${good.name} is ready · 5 channels · 25 min 0 s · 30 frames/s`).waitFor();
         await shotWhole(b, 'upload-done');
-        expectNoErrors(b, 'the upload');
+        expectNoErrors(b, 'the upload', stack.logs);
 
         // The list shows it, ready.
         await page.getByTestId(`recording-row-${body.recording.id}`).getByTestId('status-ready').waitFor({ timeout: 20_000 });
@@ -205,7 +185,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         expect(await scanForm.getByLabel('Step (s)').inputValue()).toBe('60');
         await scanForm.getByText('default 1200 s (20 min)').waitFor();
         await shotWhole(b, 'recording');
-        expectNoErrors(b, 'the recording page');
+        expectNoErrors(b, 'the recording page', stack.logs);
 
         // 4. An ambient scan with a longer step (fewer windows), checked by the form first.
         await scanForm.getByLabel('Step (s)').fill('-5');
@@ -259,13 +239,13 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
           expect(damping).toBeLessThan(7);
         }
         await shotWhole(b, 'scan');
-        expectNoErrors(b, 'the scan');
+        expectNoErrors(b, 'the scan', stack.logs);
 
         // The Recordings screen lists the scan among the latest analyses.
         await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).click();
         await page.getByRole('link', { name: new RegExp(`^Open ambient scan ${scanId}`) }).waitFor();
         await shotWhole(b, 'recordings');
-        expectNoErrors(b, 'Recordings');
+        expectNoErrors(b, 'Recordings', stack.logs);
       } finally {
         await b.close();
       }

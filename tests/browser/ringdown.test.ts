@@ -12,7 +12,7 @@ import { writeCsv } from '../../modal/formats/csv';
 import { buildTarrowModel, simulateRingdown, type RingdownSimulation } from '../../modal/simulator';
 import { FIT_CSV_COLUMNS } from '../../shared/api/fits';
 import { LIGHT_CHANNELS } from '../../scripts/seed-demo';
-import { shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { shotWhole, openBrowser, type BrowserSession, type ViewportName, signInAs, expectNoErrors } from '../helpers/browser';
 import { startStack, type Stack } from '../helpers/stack';
 
 const PASSWORD = 'tarrow-demo-2026';
@@ -43,26 +43,6 @@ function ringdownFile(seed: number): { file: string; name: string; sim: Ringdown
   const file = path.join(dir, name);
   fs.writeFileSync(file, writeCsv(sim.record, { decimals: 5 }));
   return { file, name, sim };
-}
-
-async function signIn(page: Page): Promise<void> {
-  await page.goto(`${stack.baseUrl}/`);
-  await page.getByLabel('Email').fill('engineer@tarrow.example');
-  await page.getByLabel('Password').fill(PASSWORD);
-  // Sign-in lands on Watch; let its first answer arrive, so what follows is this suite's screens.
-  const watch = page.waitForResponse((r) => new URL(r.url()).pathname === '/api/watch', { timeout: 15_000 }).catch(() => null);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).waitFor({ timeout: 20_000 });
-  await watch;
-  // The browser logs a failed request a moment after its answer: let that land before the
-  // caller starts counting.
-  await page.waitForTimeout(500);
-}
-
-
-function expectNoErrors(b: BrowserSession, where: string): void {
-  const server = b.errors.length ? `\nlast server lines:\n${stack.logs.slice(-25).join('\n')}` : '';
-  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}${server}`).toEqual([]);
 }
 
 /** The `d` of the reconstruction's line (drawn in the accent colour) in the ring-down chart. */
@@ -99,7 +79,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         page.on('response', (r) => {
           if (r.status() >= 500) b.errors.push(`HTTP ${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
         });
-        await signIn(page);
+        await signInAs(b, stack.baseUrl, 'engineer@tarrow.example', PASSWORD, { settle: true });
         b.errors.length = 0;
         await page.getByRole('navigation').first().getByText('Recordings', { exact: true }).click();
         await page.getByRole('heading', { name: 'Recordings', level: 1 }).waitFor();
@@ -114,7 +94,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await expect.poll(async () => bar.getAttribute('aria-valuetext'), { timeout: 60_000 }).toBe('100 %: Ready');
         await page.getByTestId('upload-summary').getByText(`${name} is ready · ${CHANNELS.length} channels · 45.0 s · 30 frames/s`).waitFor();
         await shotWhole(b, 'upload-done');
-        expectNoErrors(b, 'the upload');
+        expectNoErrors(b, 'the upload', stack.logs);
 
         // The recording's page: type the 20 s after the event into the fit form.
         await page.getByRole('link', { name: `Open recording ${name}` }).first().click();
@@ -129,7 +109,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         // Units everywhere: the interval's UTC ends beside the fields.
         await form.getByText('20.0 s long', { exact: false }).waitFor();
         await shotWhole(b, 'recording');
-        expectNoErrors(b, 'the recording page');
+        expectNoErrors(b, 'the recording page', stack.logs);
         await form.getByRole('button', { name: 'Fit this interval' }).click();
         await page.waitForURL(/\/fits\/\d+$/, { timeout: 20_000 });
         const fitId = Number(/\/fits\/(\d+)$/.exec(page.url())![1]);
@@ -173,7 +153,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await expect.poll(() => reconstructionPath(page)).toBe(before);
         await page.getByTestId('mode-shape-polar').waitFor();
         await shotWhole(b, 'ringdown');
-        expectNoErrors(b, 'the ring-down view');
+        expectNoErrors(b, 'the ring-down view', stack.logs);
 
         // The CSV export is a link to the server.
         const csvHref = await page.getByRole('link', { name: `Download fit ${fitId} as CSV` }).getAttribute('href');
@@ -209,13 +189,13 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
         await page.getByText(new RegExp(`${span.replace('.', '\\.')} s from `)).first().waitFor();
         await page.getByTestId('modes-table').waitFor();
         await shotWhole(b, 'refit');
-        expectNoErrors(b, 'the new fit');
+        expectNoErrors(b, 'the new fit', stack.logs);
 
         // Both fits are listed on the recording's page.
         await page.getByRole('link', { name: 'Back to the recording' }).click();
         await page.getByRole('link', { name: `Open ring-down fit ${fitId}` }).waitFor();
         await page.getByRole('link', { name: `Open ring-down fit ${refitId}` }).waitFor();
-        expectNoErrors(b, 'the recording page');
+        expectNoErrors(b, 'the recording page', stack.logs);
       } finally {
         await b.close();
       }

@@ -14,7 +14,7 @@
 // (tests/helpers/scenario.ts).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { transferAtDampingPercent } from '../../modal/simulator';
-import { goToSection, shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { goToSection, shotWhole, openBrowser, type BrowserSession, type ViewportName, signInAs } from '../helpers/browser';
 import { DEMO_PASSWORD, ROLE_EMAIL } from '../helpers/fixtures';
 import { fillEstimates } from '../../scripts/bench/fill-year';
 import { seedAmbientScenario } from '../helpers/scenario';
@@ -34,17 +34,6 @@ afterAll(async () => {
   await stack?.stop();
 });
 
-async function signIn(b: BrowserSession, role: keyof typeof ROLE_EMAIL): Promise<void> {
-  const { page } = b;
-  await page.goto(`${stack.baseUrl}/`);
-  await page.getByLabel('Email').fill(ROLE_EMAIL[role]);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Watch', level: 1 }).waitFor({ timeout: 20_000 });
-}
-
-
-
 const fromLabel = (text: string) => /From\s+(\d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC)/.exec(text)?.[1];
 
 for (const viewport of ['phone', 'wide'] as ViewportName[]) {
@@ -53,7 +42,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
       const b = await openBrowser(SUITE, viewport);
       try {
         const { page } = b;
-        await signIn(b, 'planner');
+        await signInAs(b, stack.baseUrl, ROLE_EMAIL.planner, DEMO_PASSWORD);
         const stale = page.getByTestId('stale-warning');
         await stale.waitFor({ timeout: 20_000 });
         expect(await stale.innerText()).toMatch(/North–south: no new estimate for 1 h( \d+ min)?; one is expected at least every 5 min/);
@@ -103,7 +92,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
       const b = await openBrowser(SUITE, viewport);
       try {
         const { page } = b;
-        await signIn(b, 'planner');
+        await signInAs(b, stack.baseUrl, ROLE_EMAIL.planner, DEMO_PASSWORD);
         const run = page.waitForResponse((r) => r.url().includes('/api/studies/transfer?') && r.status() === 200);
         await goToSection(b, 'Transfer study');
         const { study } = await (await run).json();
@@ -172,7 +161,7 @@ describe('planner at wide, over a long period', () => {
     const b = await openBrowser(SUITE, 'wide');
     try {
       const { page } = b;
-      await signIn(b, 'planner');
+      await signInAs(b, stack.baseUrl, ROLE_EMAIL.planner, DEMO_PASSWORD);
       await goToSection(b, 'Transfer study');
       await page.getByTestId('projection-poor-mw').waitFor({ timeout: 20_000 });
       await page.getByLabel('From (UTC date)').fill(day(endDay - 3 * 86_400));

@@ -10,7 +10,7 @@
 // so the real alert rule opens an alert.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ADVISORY_CAUTION } from '../../shared/api/alerts';
-import { goToSection, shotWhole, openBrowser, type BrowserSession, type ViewportName } from '../helpers/browser';
+import { goToSection, shotWhole, openBrowser, type BrowserSession, type ViewportName, signInAs } from '../helpers/browser';
 import { DEMO_PASSWORD, ROLE_EMAIL } from '../helpers/fixtures';
 import { seedAmbientScenario } from '../helpers/scenario';
 import { startStack, type Stack } from '../helpers/stack';
@@ -33,17 +33,6 @@ afterAll(async () => {
   await stack?.stop();
 });
 
-async function signIn(b: BrowserSession, role: keyof typeof ROLE_EMAIL): Promise<void> {
-  const { page } = b;
-  await page.goto(`${stack.baseUrl}/`);
-  await page.getByLabel('Email').fill(ROLE_EMAIL[role]);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Watch', level: 1 }).waitFor({ timeout: 20_000 });
-}
-
-
-
 for (const viewport of ['phone', 'wide'] as ViewportName[]) {
   describe(`operator at ${viewport}`, () => {
     it('sees the poorly damped mode on Watch, opens its alert and acknowledges it with a note', async () => {
@@ -53,7 +42,7 @@ for (const viewport of ['phone', 'wide'] as ViewportName[]) {
       const b = await openBrowser(SUITE, viewport);
       try {
         const { page } = b;
-        await signIn(b, 'operator');
+        await signInAs(b, stack.baseUrl, ROLE_EMAIL.operator, DEMO_PASSWORD);
 
         // Target of the screens' issue: Watch usable within 2 s of navigation on loopback. Measured
         // and printed (a fresh page load until the north–south card shows its band), not asserted.
@@ -140,7 +129,7 @@ describe('planner', () => {
     const b = await openBrowser(SUITE, 'phone');
     try {
       const { page } = b;
-      await signIn(b, 'planner');
+      await signInAs(b, stack.baseUrl, ROLE_EMAIL.planner, DEMO_PASSWORD);
       await page.goto(`${stack.baseUrl}/alerts/${alertId}`);
       await page.getByRole('heading', { name: 'North–south: poorly damped mode' }).waitFor({ timeout: 20_000 });
       expect(await page.getByTestId('caution').innerText()).toContain(ADVISORY_CAUTION);

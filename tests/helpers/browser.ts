@@ -3,6 +3,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { expect } from 'vitest';
 
 export const VIEWPORTS = {
   phone: { width: 390, height: 844 },
@@ -95,4 +96,30 @@ export async function shotWhole(b: BrowserSession, name: string): Promise<void> 
   }
   await b.shot(name);
   if (extra > 0) await page.setViewportSize(size);
+}
+
+/**
+ * Signs in from the start page; sign-in lands on Watch. `settle`: also wait for Watch's first
+ * answer and the browser's late console lines, so a caller that clears `b.errors` afterwards
+ * counts only its own screens.
+ */
+export async function signInAs(b: BrowserSession, baseUrl: string, email: string, password: string, opts: { settle?: boolean } = {}): Promise<void> {
+  const { page } = b;
+  await page.goto(`${baseUrl}/`);
+  await page.getByLabel('Email').fill(email);
+  await page.getByLabel('Password').fill(password);
+  const watch = opts.settle ? page.waitForResponse((r) => new URL(r.url()).pathname === '/api/watch', { timeout: 15_000 }).catch(() => null) : null;
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByRole('heading', { name: 'Watch', level: 1 }).waitFor({ timeout: 20_000 });
+  if (opts.settle) {
+    await watch;
+    // the browser logs a failed request a moment after its answer
+    await page.waitForTimeout(500);
+  }
+}
+
+/** No console errors so far; on failure also shows the stack's last log lines. */
+export function expectNoErrors(b: BrowserSession, where: string, serverLogs: string[]): void {
+  const server = b.errors.length ? `\nlast server lines:\n${serverLogs.slice(-25).join('\n')}` : '';
+  expect(b.errors, `console errors on ${where}:\n${b.errors.join('\n')}${server}`).toEqual([]);
 }
