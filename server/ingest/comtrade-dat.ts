@@ -70,6 +70,11 @@ function checkSampleNumber(
   sample: number,
   prev: number | null,
 ): void {
+  // Sample 1 is at the configuration's start time (timeOf), and endsamp counts from it: data
+  // that begin later were cut at the front, and would be placed at the wrong times.
+  if (prev === null && sample !== 1) {
+    throw new FileRefusedError(loc(), `the first sample is numbered ${sample}, but the data of ${opts.cfgLabel} start at sample 1; is the data file cut at the front?`);
+  }
   if (prev !== null && sample !== prev + 1) {
     throw new FileRefusedError(loc(), `sample number ${sample} does not follow ${prev} (expected ${prev + 1})`);
   }

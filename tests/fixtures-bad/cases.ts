@@ -234,6 +234,12 @@ export const BAD_CASES: BadCase[] = [
     message: 'sample-skip.dat line 7: sample number 8 does not follow 6 (expected 7)',
   },
   {
+    what: 'ASCII .dat cut at the front (first sample not 1)',
+    files: ['front-cut.cfg', 'front-cut.dat'],
+    code: 'BAD_FILE',
+    message: 'front-cut.dat line 1: the first sample is numbered 4, but the data of front-cut.cfg start at sample 1; is the data file cut at the front?',
+  },
+  {
     what: 'ASCII .dat with too few fields in a row',
     files: ['dat-columns.cfg', 'dat-columns.dat'],
     code: 'BAD_FILE',

@@ -120,6 +120,8 @@ export function corpusFiles(): Record<string, string | Buffer> {
   f['text-in-dat.dat'] = comtradeAsciiDat(S, { replace: { 4: `5,133333,12345,n/a,-8000` } });
   f['sample-skip.cfg'] = cfg;
   f['sample-skip.dat'] = comtradeAsciiDat(S, { drop: [6] });
+  f['front-cut.cfg'] = cfg;
+  f['front-cut.dat'] = comtradeAsciiDat(S, { drop: [0, 1, 2] });
   f['short-ascii.cfg'] = cfg;
   f['short-ascii.dat'] = comtradeAsciiDat(S, { drop: [36, 37, 38, 39] });
   f['short-binary.cfg'] = comtradeCfg(S, { fileType: 'BINARY' });

@@ -12,7 +12,7 @@ import { FileRefusedError, UnmappedColumnsError } from '../../server/ingest/erro
 import { csvText, tarrowSeries } from '../fixtures-bad/make-files';
 import { ingestToMemory, makeTmpDir, refusal, writeUpload } from '../fixtures-bad/harness';
 import { baseUploads, describeCase, makeCase, MUTATION_KINDS, rngFrom } from '../fuzz/mutate';
-import { acceptedProblem } from '../fuzz/parser-case';
+import { acceptedProblem, runParserCase } from '../fuzz/parser-case';
 import { runParserFuzz } from '../fuzz/parser-driver';
 
 const CASES = 400;
@@ -68,6 +68,15 @@ describe(`${CASES} mutated uploads through the parser`, () => {
 
 describe('regressions found by the fuzzer', () => {
   const s = tarrowSeries(30, 30, 1_767_225_600);
+
+  it('a .cff whose DAT section lost its first 59 samples (a swapped section line) is refused, not stored as one row', async () => {
+    // seed 1004534 of the route fuzz: the "--- file type: DAT" line swapped with the last sample
+    const c = makeCase(1_004_534);
+    expect(describeCase(c)).toBe('seed 1004534 (single-file .cff (ASCII, 60 frames/s)): moorgate.cff: swap lines 21 and 80');
+    const out = await runParserCase(c, dir, 5000);
+    expect(out).toMatchObject({ kind: 'refused', code: 'BAD_FILE' });
+    expect(out.message).toMatch(/: the first sample is numbered 60, but the data of .+ start at sample 1; is the data file cut at the front\?$/);
+  });
 
   it('a quote in the middle of a CSV field is a BAD_FILE refusal (csv-parse code without the CSV_ prefix)', async () => {
     const lines = csvText(s).split('\n');
