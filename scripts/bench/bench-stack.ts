@@ -7,6 +7,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { descendants } from '../../tests/helpers/processes';
 
 export const repoRoot = path.resolve(__dirname, '..', '..');
 
@@ -206,31 +207,6 @@ export async function signIn(baseUrl: string, email: string, password: string): 
   if (r.status !== 200) throw new Error(`sign-in as ${email} answered ${r.status}: ${await r.text()}`);
   const body = (await r.json()) as { csrfToken: string };
   return { cookie: cookie(), csrf: body.csrfToken };
-}
-
-/** Every process below `pid` (read from /proc), children first. */
-export function descendants(pid: number): number[] {
-  const parent = new Map<number, number>();
-  for (const d of fs.readdirSync('/proc')) {
-    if (!/^\d+$/.test(d)) continue;
-    try {
-      const stat = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
-      parent.set(Number(d), Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]));
-    } catch {
-      /* gone */
-    }
-  }
-  const out: number[] = [];
-  const walk = (p: number) => {
-    for (const [c, pp] of parent) {
-      if (pp === p) {
-        walk(c);
-        out.push(c);
-      }
-    }
-  };
-  walk(pid);
-  return out;
 }
 
 /** A /proc/<pid>/status field in MB (VmHWM: peak resident set; VmRSS: now), or null when gone. */

@@ -18,6 +18,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildTarrowModel, simulateRingdown } from '../../modal/simulator';
 import { createClient, type Client, type HttpResult } from '../helpers/http';
 import { DEMO_PASSWORD, ROLE_EMAIL, waitFor } from '../helpers/fixtures';
+import { descendants } from '../helpers/processes';
 import { startStack, type Stack } from '../helpers/stack';
 import { ambientRecord, csvOf, TEST_CHANNELS, uploadCsv, uploadReady } from './analysis-helpers';
 
@@ -217,26 +218,6 @@ describe('PostgreSQL killed and started again', () => {
     expect(serverStarts()).toBe(1);
   });
 });
-
-/** Every process below `pid` (found through /proc), children first. */
-function descendants(pid: number): number[] {
-  const parent = new Map<number, number>();
-  for (const d of fs.readdirSync('/proc')) {
-    if (!/^\d+$/.test(d)) continue;
-    try {
-      const stat = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
-      parent.set(Number(d), Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]));
-    } catch {
-      /* ended meanwhile */
-    }
-  }
-  const out: number[] = [];
-  const walk = (p: number) => {
-    for (const [c, pp] of parent) if (pp === p) (walk(c), out.push(c));
-  };
-  walk(pid);
-  return out;
-}
 
 describe('the worker killed in the middle of an ingest', () => {
   it('the job is taken over and the recording stored exactly once', async () => {

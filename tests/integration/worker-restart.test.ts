@@ -1,10 +1,10 @@
 // A worker killed in the middle of an ambient scan (SIGKILL of its whole process tree: the worker
 // and its sandboxed scan process) and started again finishes the scan with every window stored
 // exactly once: no duplicated and no missing window starts.
-import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createClient, type Client } from '../helpers/http';
 import { DEMO_PASSWORD, ROLE_EMAIL, waitFor } from '../helpers/fixtures';
+import { descendants } from '../helpers/processes';
 import { startStack, type Stack } from '../helpers/stack';
 import { ambientRecord, csvOf, uploadReady } from './analysis-helpers';
 
@@ -14,32 +14,6 @@ const EXPECTED = (MINUTES * 60 - 1200) / 60 + 1; // 20-minute windows every minu
 
 let stack: Stack;
 let engineer: Client;
-
-/** Every process below `pid` (children first found through /proc). */
-function descendants(pid: number): number[] {
-  const parent = new Map<number, number>();
-  for (const d of fs.readdirSync('/proc')) {
-    if (!/^\d+$/.test(d)) continue;
-    try {
-      const stat = fs.readFileSync(`/proc/${d}/stat`, 'utf8');
-      const ppid = Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]);
-      parent.set(Number(d), ppid);
-    } catch {
-      /* the process ended meanwhile */
-    }
-  }
-  const out: number[] = [];
-  const walk = (p: number) => {
-    for (const [c, pp] of parent) {
-      if (pp === p) {
-        out.push(c);
-        walk(c);
-      }
-    }
-  };
-  walk(pid);
-  return out;
-}
 
 async function windowCount(analysisId: number): Promise<number> {
   return (await stack.pool.query('select count(*)::int as n from scan_windows where analysis_id = $1', [analysisId])).rows[0].n;
